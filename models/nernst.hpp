@@ -1,0 +1,46 @@
+// Cell EMF of the lead-acid couple from the Nernst equation.
+//
+//   Pb + PbO2 + 2 H2SO4 -> 2 PbSO4 + 2 H2O,  n = 2
+//   E = E0 + (RT/F) ln(a_H2SO4 / a_H2O),  a_H2SO4 = 4 m^3 gamma_pm^3
+//
+// Activity data, E0, temperature coefficient and the high-molality
+// extension are cited in the .cpp. CODATA 2018 values for R and F.
+#pragma once
+
+#include "models/result.hpp"
+#include "models/units.hpp"
+
+namespace pbfleet::models {
+
+// CODATA 2018 exact values.
+inline constexpr double kFaradayCPerMol = 96485.33212;
+inline constexpr double kGasConstantJPerMolK = 8.314462618;
+inline constexpr int kElectronsPerCellReaction = 2;
+
+// Molality range the cell model covers (mol/kg).
+inline constexpr Molality kMinModelMolality{0.1};
+inline constexpr Molality kMaxModelMolality{8.0};
+
+// Standard EMF of the cell at 25 degC (V).
+Volts standard_cell_emf();
+
+// Mean stoichiometric activity coefficient gamma_pm of H2SO4 at 25 degC.
+Result<double> mean_activity_coefficient(Molality m);
+// Water activity a_w of aqueous H2SO4 at 25 degC.
+Result<double> water_activity(Molality m);
+
+// Cell EMF (V) at molality m and electrolyte temperature t.
+Result<Volts> cell_emf(Molality m, Celsius t);
+// Cell EMF (V) from SG 25/25 and electrolyte temperature.
+Result<Volts> cell_emf_from_sg(SpecificGravity sg25, Celsius t);
+// Open-circuit voltage of `cells` cells in series (V).
+Volts battery_ocv(Volts cell_emf, int cells);
+
+// Inverse model: molality whose EMF equals `cell` at temperature t, by a
+// bracketed monotone solver. Error when no concentration in the model range
+// produces that EMF.
+Result<Molality> molality_from_cell_emf(Volts cell, Celsius t);
+// Inverse model to SG 25/25: battery OCV of `cells` cells at temperature t.
+Result<SpecificGravity> sg_from_ocv(Volts ocv, int cells, Celsius t);
+
+}  // namespace pbfleet::models
