@@ -1,0 +1,26 @@
+# Install rules and CPack: `cmake --build build && (cd build && cpack -G DEB)`
+# builds a .deb with both binaries, the systemd unit, the schema and docs.
+include(GNUInstallDirs)
+if(TARGET pbfleetd)
+  install(TARGETS pbfleetd RUNTIME DESTINATION ${CMAKE_INSTALL_BINDIR})
+endif()
+if(TARGET pbfleet)
+  install(TARGETS pbfleet RUNTIME DESTINATION ${CMAKE_INSTALL_BINDIR})
+endif()
+install(FILES ${PBFLEET_ROOT}/deploy/pbfleetd.service DESTINATION lib/systemd/system)
+install(FILES ${PBFLEET_ROOT}/deploy/pbfleetd.conf.example DESTINATION ${CMAKE_INSTALL_DOCDIR})
+install(DIRECTORY ${PBFLEET_ROOT}/schema/ DESTINATION ${CMAKE_INSTALL_DATADIR}/pbfleet/schema
+        FILES_MATCHING PATTERN "*.sql")
+install(FILES ${PBFLEET_ROOT}/README.md ${PBFLEET_ROOT}/deploy/backup DESTINATION ${CMAKE_INSTALL_DOCDIR})
+
+set(CPACK_PACKAGE_NAME pbfleet)
+set(CPACK_PACKAGE_VENDOR "pbfleet developers")
+set(CPACK_PACKAGE_CONTACT "pbfleet developers <maintainers@pbfleet.invalid>")
+set(CPACK_PACKAGE_DESCRIPTION_SUMMARY "Winter health of lead-acid batteries in a vehicle fleet")
+set(CPACK_PACKAGE_VERSION ${PROJECT_VERSION})
+set(CPACK_DEBIAN_FILE_NAME DEB-DEFAULT)
+set(CPACK_DEBIAN_PACKAGE_SECTION utils)
+set(CPACK_DEBIAN_PACKAGE_SHLIBDEPS ON)
+set(CPACK_DEBIAN_PACKAGE_ARCHITECTURE amd64)
+set(CPACK_PACKAGING_INSTALL_PREFIX /usr)
+include(CPack)
