@@ -1,0 +1,96 @@
+// Sulfation and ageing from one battery's history.
+//
+// Signals, each computed from derived readings (derive.hpp):
+//  - undercharge exposure: days in the last window (90 d) during which the
+//    latest trusted SOC was below the chemistry's threshold (75 % default);
+//    each trusted reading's SOC is held until the next reading or "now";
+//  - full-charge trend: Theil-Sen slope of the SG 25/25 equivalent of
+//    trusted readings taken after a recorded charge (all trusted readings
+//    when too few follow a charge); below settings.min_trend_readings points
+//    the report says "too few readings" and draws no trend;
+//  - growing cell spread: Theil-Sen slope of the corrected cell spread;
+//  - no recovery: a trusted reading after a recorded charge still more than
+//    settings.recovery_sg_gap below the battery's full-charge SG;
+//  - a failed load test at 75 % SOC or more.
+#pragma once
+
+#include <chrono>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "models/analytics/history.hpp"
+#include "models/analytics/theil_sen.hpp"
+
+namespace pbfleet::analytics {
+
+// How far sulfation / ageing has gone, in plain words.
+enum class SulfationClass {
+  none,              // no sign
+  early,             // exposure or a weak downward hint: recharge and keep it up
+  advancing,         // a significant downward trend or a failed recovery
+  likely_permanent,  // does not recover after charging and keeps falling, or fails a load test
+};
+// "none", "early", "advancing", "likely_permanent".
+std::string_view to_string(SulfationClass c);
+
+// One recommended step.
+enum class Action {
+  keep_watching,     // nothing to do beyond the weekly round
+  recharge,          // full charge, then a settled reading
+  equalise,          // controlled overcharge (flooded only), with the safety caution
+  load_test,         // at 75 % SOC or more
+  replace,
+};
+// "keep_watching", "recharge", "equalise", "load_test", "replace".
+std::string_view to_string(Action a);
+
+// Caution shown with every equalising recommendation.
+extern const std::string_view kEqualiseCaution;
+// Caution shown with every recharge recommendation.
+extern const std::string_view kChargeCaution;
+
+// Which series the full-charge trend was drawn from.
+enum class TrendBasis { after_charge, all_trusted, none };
+// "after_charge", "all_trusted", "none".
+std::string_view to_string(TrendBasis b);
+
+struct SulfationAssessment {
+  std::string serial;
+  std::int64_t depot_id = 0;
+  std::string depot_name;
+  SulfationClass level = SulfationClass::none;
+  // Exposure
+  double undercharge_days = 0.0;         // in the window
+  int exposure_window_days = 90;
+  double undercharge_threshold_pct = 75.0;
+  // Full-charge SG trend (x in days since the first point, y SG 25/25 equivalent)
+  TrendBasis trend_basis = TrendBasis::none;
+  int trend_points = 0;
+  std::optional<TrendFit> sg_trend;      // nullopt when too few points
+  std::chrono::sys_seconds trend_origin{};  // x = 0 of sg_trend
+  // Cell spread trend (same x)
+  std::optional<TrendFit> spread_trend;
+  std::optional<double> latest_spread;
+  std::optional<int> weak_cell;          // 1-based, from the latest flagged reading
+  // Recovery after charge
+  int charges_seen = 0;                  // trusted readings after a recorded charge
+  int charges_not_recovered = 0;
+  bool latest_charge_recovered = true;
+  bool load_test_failed = false;         // at 75 % SOC or more
+  std::vector<std::string> reasons;
+  std::vector<Action> actions;           // in order; may be empty (keep watching)
+  std::vector<std::string_view> cautions; // safety texts for the actions given
+};
+
+// Assesses one battery's full history at `now`.
+SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono::sys_seconds now,
+                                     const AnalyticsSettings& settings);
+
+// Assesses every in-service battery; worst class first, then exposure, then serial.
+std::vector<SulfationAssessment> sulfation_report(std::span<const BatteryHistory> fleet,
+                                                  std::chrono::sys_seconds now,
+                                                  const AnalyticsSettings& settings);
+
+}  // namespace pbfleet::analytics
