@@ -15,8 +15,9 @@
 namespace pbfleet::models {
 
 // One thing wrong with one input field. `field` is the wire name
-// (e.g. "cell_sg[3]", "ocv_v"), `detail` a sentence for a person,
-// `allowed` the accepted range or form ("1.000 to 1.400").
+// (e.g. "cell_sg/3", "ocv_v"; convention in models/wire/reading.hpp),
+// `detail` a sentence for a person, `allowed` the accepted range or form
+// ("1.000 to 1.400").
 struct FieldError {
   std::string field;
   std::string detail;

@@ -52,10 +52,38 @@ inline constexpr int kMaxCells = 24;
 inline constexpr std::size_t kMaxTextLength = 200;
 inline constexpr std::size_t kMaxIdLength = 64;
 inline constexpr std::chrono::hours kMaxFutureSkew{24};
+// Added by the wire library (additive to the first contract):
+inline constexpr double kMaxOcvUnknownCellsV = 30.0;  // cells unknown: above a charging 24 V battery
+inline constexpr double kMaxLoadTestA = 3000.0;       // above half the CCA of any starting battery
+// Earliest accepted taken_at: older records are typing errors, not history.
+inline constexpr std::chrono::sys_days kEarliestReading{
+    std::chrono::year{2000} / std::chrono::January / 1};
 
 // Every problem with a reading, each naming the field and the allowed range.
 // `cells` is the battery's cell count when known (0 = unknown), used for the
 // OCV range and the number of SG values. Empty = valid.
+//
+// Field naming (FieldError::field), one convention everywhere in the wire
+// library: the API's JSON member name, and for a list member a JSON Pointer
+// (RFC 6901) path relative to the reading, without the leading slash:
+//   "ocv_v", "rest_h", "taken_at", "serial", "cell_sg" (the list as a whole),
+//   "cell_sg/0" (first cell; indices are 0-based as in JSON Pointer),
+//   "electrolyte_temp_c" or "electrolyte_temp_f" (the unit it was entered
+//   in; "_c" when missing), "ambient_temp_c" / "ambient_temp_f".
+// A caller builds a full pointer by prefixing "/" (one object) or
+// "/<index>/" (array body). CSV import names its columns the same way except
+// the two temperature columns (see csv_column_for_field in csv.hpp).
+//
+// Rules: serial 1..64 code points, no control characters, '/', '\\', ".." or
+// leading/trailing spaces; reading_id empty or 1..64 of [A-Za-z0-9._:-];
+// taken_at from 2000-01-01T00:00:00Z to now + 24 h; ocv_v and/or cell_sg;
+// SG 1.000..1.400 each, as many as `cells` when known, at most kMaxCells;
+// electrolyte temperature required with cell_sg; temperatures -60..80 C;
+// ocv_v and load_test_end_v 0..2.5 V x cells (0..30 V when cells unknown);
+// rest_h 0..8784; load_test_a 0..3000 A, given together with load_test_end_v;
+// logged_by, source, note at most 200 code points of valid UTF-8 (note may
+// hold tab and line breaks, the others no control characters). SQL meta
+// characters are ordinary text here: storage binds parameters.
 FieldErrors validate_reading(const ReadingInput& reading, std::chrono::sys_seconds now,
                              int cells = 0);
 
