@@ -21,6 +21,7 @@
 #include <vector>
 
 #include "models/analytics/history.hpp"
+#include "models/analytics/safety.hpp"
 #include "models/analytics/theil_sen.hpp"
 
 namespace pbfleet::analytics {
@@ -45,11 +46,6 @@ enum class Action {
 };
 // "keep_watching", "recharge", "equalise", "load_test", "replace".
 std::string_view to_string(Action a);
-
-// Caution shown with every equalising recommendation.
-extern const std::string_view kEqualiseCaution;
-// Caution shown with every recharge recommendation.
-extern const std::string_view kChargeCaution;
 
 // Which series the full-charge trend was drawn from.
 enum class TrendBasis { after_charge, all_trusted, none };

@@ -4,7 +4,7 @@
 // (Theil 1950; Sen, "Estimates of the regression coefficient based on
 // Kendall's tau", JASA 63 (1968) 1379). Its confidence interval is the
 // rank-based one of Sen 1968 as given in Gilbert, "Statistical Methods for
-// Environmental Pollution Monitoring" (1987), section 16.5, using the
+// Environmental Pollution Monitoring" (1987), section 16.5 (from memory), using the
 // variance of Kendall's S without tie correction.
 #pragma once
 

@@ -20,6 +20,7 @@
 #include <vector>
 
 #include "models/analytics/history.hpp"
+#include "models/analytics/safety.hpp"
 
 namespace pbfleet::analytics {
 
@@ -75,6 +76,7 @@ struct WinterRisk {
   bool replacement_expected = false;               // would not crank even fully charged
   std::vector<std::string> reasons;                // sentences, most important first
   std::string action;                              // one recommended step, in words
+  std::vector<std::string_view> cautions;          // safety texts for the action, if any
 };
 
 struct DepotWinterSummary {
