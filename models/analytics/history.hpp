@@ -169,6 +169,15 @@ struct AnalyticsSettings {
   double replace_capacity_pct = 80.0;
   // How far ahead replacement dates are forecast (days).
   int forecast_horizon_days = 3 * 365;
+  // Sulfation classes (design choices of this project, tunable):
+  // a full-charge SG fall counts only when it would lose at least this much
+  // SG per year (0.010 is about 7 % SOC on a 1.120-1.265 battery) ...
+  double min_trend_drop_sg_per_year = 0.010;
+  // ... a weak hint needs this share of pairwise slopes pointing down ...
+  double trend_hint_same_sign = 0.60;
+  // ... and undercharge exposure (days in the window) for early / advancing.
+  double exposure_early_days = 7.0;
+  double exposure_advancing_days = 30.0;
 };
 
 // Undercharge threshold for a chemistry (%).

@@ -53,8 +53,9 @@ ReplacementForecast forecast_replacement(const BatteryContext& battery,
                                          const AnalyticsSettings& settings);
 
 // SG 25/25 at full charge below which the battery will not crank at `low`
-// (crank margin < 1); nullopt when rated CCA or the engine need is unknown,
-// or it will not crank even at 100 % SOC (then the threshold is the full SG).
+// (crank margin < 1). The battery's full-charge SG when it will not crank
+// even at 100 % SOC; its discharged SG when it cranks even at 0 %; nullopt
+// when the rated CCA or the engine need is unknown.
 std::optional<double> cranking_threshold_sg(const BatteryContext& battery, models::Celsius low);
 
 // Fleet list: dated forecasts first by date, then undated ones by serial.

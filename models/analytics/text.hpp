@@ -1,6 +1,7 @@
 // Number formatting for report sentences (internal to the analytics).
 #pragma once
 
+#include <chrono>
 #include <string>
 
 namespace pbfleet::analytics::text {
@@ -13,5 +14,9 @@ std::string celsius(double value);
 std::string percent(double value);
 // Whole amperes: "310 A".
 std::string amperes(double value);
+
+// Calendar date of a UTC time: "2026-11-30".
+std::string date(std::chrono::sys_seconds t);
+std::string date(std::chrono::sys_days d);
 
 }  // namespace pbfleet::analytics::text

@@ -68,8 +68,8 @@ std::optional<TrendFit> theil_sen(std::span<const double> x, std::span<const dou
   fit.confidence = confidence;
   const auto count = static_cast<double>(slopes.size());
   fit.slope = at_rank(slopes, 0.5 * (count + 1.0));
-  fit.intercept = median(std::vector<double>(y.begin(), y.end())) -
-                  fit.slope * median(std::vector<double>(x.begin(), x.end()));
+  fit.centre_x = median(std::vector<double>(x.begin(), x.end()));
+  fit.intercept = median(std::vector<double>(y.begin(), y.end())) - fit.slope * fit.centre_x;
   fit.same_sign_fraction = same_sign_share(slopes, fit.slope);
   // Gilbert 1987, section 16.5 (from memory): C = z(1 - alpha/2) sqrt(Var S),
   // Var S = n(n-1)(2n+5)/18; limits at ranks (N - C)/2 and (N + C)/2 + 1.

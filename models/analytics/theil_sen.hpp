@@ -17,6 +17,7 @@ struct TrendFit {
   int points = 0;                  // n
   double slope = 0.0;              // median pairwise slope, y units per x unit
   double intercept = 0.0;          // median(y) - slope * median(x)
+  double centre_x = 0.0;           // median(x): the fitted line passes (centre_x, median(y))
   double slope_low = 0.0;          // lower end of the confidence interval
   double slope_high = 0.0;         // upper end
   double confidence = 0.0;         // level of [slope_low, slope_high], e.g. 0.90
@@ -30,6 +31,11 @@ struct TrendFit {
   [[nodiscard]] bool significant_rise() const { return slope_low > 0.0; }
   // y on the fitted line at x.
   [[nodiscard]] double at(double x) const { return intercept + slope * x; }
+  // y at x on a line of another slope through the same centre point (for
+  // the band drawn from slope_low / slope_high).
+  [[nodiscard]] double at(double x, double other_slope) const {
+    return at(centre_x) + other_slope * (x - centre_x);
+  }
 };
 
 // Theil-Sen fit of y on x at a two-sided confidence level in (0, 1).
