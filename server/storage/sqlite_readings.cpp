@@ -1,0 +1,326 @@
+// Readings: idempotent batch append, group commit, bulk load, queries.
+#include <openssl/rand.h>
+
+#include <algorithm>
+#include <cstring>
+#include <limits>
+#include <unordered_map>
+
+#include "server/storage/sqlite_rows.hpp"
+#include "server/storage/sqlite_store_impl.hpp"
+
+namespace pbfleet::storage::sqlite {
+namespace {
+
+using models::wire::ReadingInput;
+using std::chrono::sys_seconds;
+
+constexpr std::string_view kInsertReading =
+    "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
+    " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h, load_test_a,"
+    " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash)"
+    " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19)";
+
+// A reading id for a reading the client sent without one: 96 random bits.
+std::string assigned_reading_id() {
+  unsigned char bytes[12];
+  if (RAND_bytes(bytes, sizeof bytes) != 1) fail(StoreErrc::internal, "random source failed");
+  static constexpr char kHex[] = "0123456789abcdef";
+  std::string id = "srv-";
+  for (unsigned char b : bytes) {
+    id += kHex[b >> 4];
+    id += kHex[b & 0xf];
+  }
+  return id;
+}
+
+template <class Q>
+std::optional<double> raw(const std::optional<Q>& q) {
+  return q ? std::optional<double>(q->value) : std::nullopt;
+}
+
+void bind_temperature(Statement& s, int index, const std::optional<models::wire::EnteredTemperature>& t) {
+  if (!t) return;
+  s.bind(index, t->value.value).bind(index + 1, t->unit == models::wire::TempUnit::f ? "F" : "C");
+}
+
+// The prepared statements of one write transaction, reused for every row.
+struct ReadingStatements {
+  explicit ReadingStatements(Db& db)
+      : battery(db.prepare("SELECT id FROM batteries WHERE serial = ?1")),
+        existing(db.prepare("SELECT id, content_hash FROM readings WHERE reading_id = ?1")),
+        insert(db.prepare(kInsertReading)),
+        original(db.prepare(std::string(kReadingSelect) + " WHERE r.id = ?1")) {}
+
+  // Battery id for a serial, cached for the transaction; nullopt if unknown.
+  std::optional<Id> battery_id(const std::string& serial) {
+    if (auto it = battery_ids.find(serial); it != battery_ids.end()) return it->second;
+    battery.reset();
+    std::optional<Id> id;
+    if (battery.bind(1, serial).step()) id = battery.int_at(0);
+    battery.reset();
+    if (id) battery_ids.emplace(serial, *id);
+    return id;
+  }
+
+  void insert_row(const ReadingInput& r, Id battery_id, sys_seconds now, const ContentHash& hash) {
+    Statement& s = insert;
+    s.reset();
+    s.bind(1, r.reading_id).bind(2, battery_id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
+    s.bind(5, raw(r.ocv)).bind(6, encode_cell_sg(r.cell_sg));
+    bind_temperature(s, 7, r.electrolyte);
+    bind_temperature(s, 9, r.ambient);
+    s.bind(11, raw(r.rest)).bind(12, raw(r.load_test_current)).bind(13, raw(r.load_test_end));
+    s.bind(14, r.logged_by).bind(15, r.source).bind(16, r.note);
+    s.bind(17, r.after_charge ? 1 : 0).bind(18, r.water_added ? 1 : 0);
+    s.bind_blob(19, hash.data(), hash.size());
+    s.run();
+  }
+
+  StoredReading read_original(Id id) {
+    original.reset();
+    original.bind(1, id).step();
+    StoredReading r = read_reading(original);
+    original.reset();
+    return r;
+  }
+
+  Statement battery;
+  Statement existing;
+  Statement insert;
+  Statement original;
+  std::unordered_map<std::string, Id> battery_ids;
+};
+
+// A reading already stored under a reading_id: its row id and content hash.
+struct Earlier {
+  Id id;
+  ContentHash hash;
+};
+
+// A reading_id met earlier in the same batch: its place in the outcome.
+struct SeenInBatch {
+  std::size_t index;
+  ContentHash hash;
+};
+
+// The stored reading with this reading_id, if any (hash to compare).
+std::optional<Earlier> find_existing(ReadingStatements& st, const std::string& reading_id) {
+  st.existing.reset();
+  std::optional<Earlier> found;
+  if (st.existing.bind(1, reading_id).step()) {
+    Earlier e{st.existing.int_at(0), {}};
+    const auto blob = st.existing.blob_at(1);
+    std::memcpy(e.hash.data(), blob.data(), std::min(blob.size(), e.hash.size()));
+    found = e;
+  }
+  st.existing.reset();
+  return found;
+}
+
+RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
+  return RowProblem{row, StoreErrc::conflict, "reading_id",
+                    "reading_id '" + reading_id +
+                        "' was already used for a reading with different content; a retry must "
+                        "resend exactly the same reading, a new reading needs a new id"};
+}
+
+// One batch inside an open transaction: every row is checked (so all
+// problems are reported), rows are inserted until the first problem.
+// The caller undoes the inserts when problems come back.
+AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<ReadingInput>& batch,
+                           sys_seconds now) {
+  AppendOutcome out;
+  std::unordered_map<std::string, SeenInBatch> seen;
+  for (std::size_t row = 0; row < batch.size(); ++row) {
+    ReadingInput input = batch[row];
+    const auto battery_id = st.battery_id(input.serial);
+    if (!battery_id) {
+      out.problems.push_back({row, StoreErrc::not_found, "serial",
+                              "no battery with serial '" + input.serial + "'"});
+      continue;
+    }
+    const ContentHash hash = content_hash(input);
+    if (input.reading_id.empty()) input.reading_id = assigned_reading_id();
+    if (auto it = seen.find(input.reading_id); it != seen.end()) {
+      if (it->second.hash != hash) {
+        out.problems.push_back(conflict_problem(row, input.reading_id));
+        continue;
+      }
+      out.readings.push_back(out.readings[it->second.index]);
+      out.replayed.push_back(true);
+      continue;
+    }
+    if (auto earlier = find_existing(st, input.reading_id)) {
+      if (earlier->hash != hash) {
+        out.problems.push_back(conflict_problem(row, input.reading_id));
+        continue;
+      }
+      seen.emplace(input.reading_id, SeenInBatch{out.readings.size(), hash});
+      out.readings.push_back(st.read_original(earlier->id));
+      out.replayed.push_back(true);
+      continue;
+    }
+    if (!out.problems.empty()) continue;  // will be undone anyway; keep checking only
+    st.insert_row(input, *battery_id, now, hash);
+    StoredReading stored;
+    static_cast<ReadingInput&>(stored) = std::move(input);
+    stored.id = db.last_insert_id();
+    stored.battery_id = *battery_id;
+    stored.received_at = now;
+    seen.emplace(stored.reading_id, SeenInBatch{out.readings.size(), hash});
+    out.readings.push_back(std::move(stored));
+    out.replayed.push_back(false);
+  }
+  if (!out.problems.empty()) {
+    out.readings.clear();
+    out.replayed.clear();
+    return out;
+  }
+  out.replayed_count = static_cast<std::size_t>(std::count(out.replayed.begin(), out.replayed.end(), true));
+  out.stored = out.readings.size() - out.replayed_count;
+  return out;
+}
+
+// Batch append guarded by a savepoint: a refused batch leaves no trace.
+AppendOutcome append_isolated(Db& db, ReadingStatements& st,
+                              const std::vector<ReadingInput>& batch, sys_seconds now) {
+  Savepoint sp(db);
+  AppendOutcome out = append_batch(db, st, batch, now);
+  out.accepted() ? sp.release() : sp.rollback();
+  return out;
+}
+
+std::int64_t seconds_or(std::optional<sys_seconds> t, std::int64_t fallback) {
+  return t ? to_db(*t) : fallback;
+}
+
+constexpr std::int64_t kMinTime = std::numeric_limits<std::int64_t>::min();
+constexpr std::int64_t kMaxTime = std::numeric_limits<std::int64_t>::max();
+
+std::vector<StoredReading> collect(Statement& s) {
+  std::vector<StoredReading> out;
+  while (s.step()) out.push_back(read_reading(s));
+  return out;
+}
+
+}  // namespace
+
+StoreResult<AppendOutcome> SqliteStore::append_readings(const std::vector<ReadingInput>& batch,
+                                                        sys_seconds now) {
+  return write([&](Db& db) {
+    ReadingStatements st(db);
+    return append_isolated(db, st, batch, now);
+  });
+}
+
+StoreResult<std::vector<AppendOutcome>> SqliteStore::append_reading_batches(
+    const std::vector<std::vector<ReadingInput>>& batches, sys_seconds now) {
+  return write([&](Db& db) {
+    ReadingStatements st(db);
+    std::vector<AppendOutcome> outcomes;
+    outcomes.reserve(batches.size());
+    for (const auto& batch : batches) outcomes.push_back(append_isolated(db, st, batch, now));
+    return outcomes;
+  });
+}
+
+StoreResult<std::size_t> SqliteStore::load_readings(const std::vector<ReadingInput>& batch,
+                                                    sys_seconds now) {
+  return write([&](Db& db) {
+    ReadingStatements st(db);
+    for (const ReadingInput& given : batch) {
+      const auto battery_id = st.battery_id(given.serial);
+      if (!battery_id) {
+        fail(StoreErrc::not_found, "no battery with serial '" + given.serial + "'", "serial");
+      }
+      ReadingInput r = given;
+      if (r.reading_id.empty()) r.reading_id = assigned_reading_id();
+      try {
+        st.insert_row(r, *battery_id, now, content_hash(r));
+      } catch (const DbError& e) {
+        if (e.error().code != StoreErrc::conflict) throw;
+        fail(StoreErrc::conflict, "reading_id '" + r.reading_id + "' is already stored",
+             "reading_id");
+      }
+    }
+    return batch.size();
+  });
+}
+
+StoreResult<std::vector<StoredReading>> SqliteStore::readings_for(
+    std::string_view serial, std::optional<sys_seconds> from, std::optional<sys_seconds> to) {
+  return read([&](Db& db) {
+    const Battery b = battery_by_serial(db, serial);
+    auto s = db.prepare(std::string(kReadingSelect) +
+                        " WHERE r.battery_id = ?1 AND r.taken_at BETWEEN ?2 AND ?3"
+                        " ORDER BY r.taken_at, r.id");
+    s.bind(1, b.id).bind(2, seconds_or(from, kMinTime)).bind(3, seconds_or(to, kMaxTime));
+    return collect(s);
+  });
+}
+
+StoreResult<Page<StoredReading>> SqliteStore::list_readings(const ReadingFilter& f,
+                                                            const PageRequest& page) {
+  return read([&](Db& db) {
+    const std::int64_t limit = page_limit(page);
+    const Id after = page_after(page);
+    std::string sql = std::string(kReadingSelect) +
+                      " WHERE r.id > ?1 AND r.taken_at BETWEEN ?2 AND ?3";
+    std::optional<Id> battery;
+    if (f.serial) {
+      battery = battery_by_serial(db, *f.serial).id;
+      sql += " AND r.battery_id = ?5";
+    }
+    auto s = db.prepare(sql + " ORDER BY r.id LIMIT ?4");
+    s.bind(1, after).bind(2, seconds_or(f.from, kMinTime)).bind(3, seconds_or(f.to, kMaxTime));
+    s.bind(4, limit + 1);
+    if (battery) s.bind(5, *battery);
+    Page<StoredReading> out;
+    out.items = collect(s);
+    if (static_cast<std::int64_t>(out.items.size()) > limit) {
+      out.items.pop_back();
+      out.next_cursor = encode_cursor(out.items.back().id);
+    }
+    return out;
+  });
+}
+
+StoreResult<std::vector<BatteryReadings>> SqliteStore::last_readings(const BatteryFilter& filter,
+                                                                     std::size_t count) {
+  return read([&](Db& db) {
+    auto s = db.prepare(std::string(kReadingSelect) +
+                        " WHERE r.battery_id = ?1 ORDER BY r.taken_at DESC, r.id DESC LIMIT ?2");
+    std::vector<BatteryReadings> out;
+    for (Battery& b : batteries_matching(db, filter)) {
+      s.reset();
+      s.bind(1, b.id).bind(2, static_cast<std::int64_t>(count));
+      out.push_back(BatteryReadings{std::move(b), collect(s)});
+    }
+    return out;
+  });
+}
+
+StoreResult<std::vector<BatteryReadings>> SqliteStore::latest_settled(const BatteryFilter& filter,
+                                                                      models::Hours min_rest) {
+  return read([&](Db& db) {
+    auto s = db.prepare(std::string(kReadingSelect) +
+                        " WHERE r.battery_id = ?1 AND r.rest_h >= ?2"
+                        " ORDER BY r.taken_at DESC, r.id DESC LIMIT 1");
+    std::vector<BatteryReadings> out;
+    for (Battery& b : batteries_matching(db, filter)) {
+      s.reset();
+      s.bind(1, b.id).bind(2, min_rest.value);
+      out.push_back(BatteryReadings{std::move(b), collect(s)});
+    }
+    return out;
+  });
+}
+
+StoreResult<std::int64_t> SqliteStore::readings_count() {
+  return read([](Db& db) {
+    return db.query_int("SELECT value FROM counters WHERE name = 'readings'");
+  });
+}
+
+}  // namespace pbfleet::storage::sqlite

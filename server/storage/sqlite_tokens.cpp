@@ -1,0 +1,69 @@
+// API tokens: only their SHA-256 is stored.
+#include "server/storage/sqlite_rows.hpp"
+#include "server/storage/sqlite_store_impl.hpp"
+
+namespace pbfleet::storage::sqlite {
+namespace {
+
+ApiToken token_by_id(Db& db, Id id) {
+  auto s = db.prepare(std::string(kTokenSelect) + " WHERE t.id = ?1");
+  if (!s.bind(1, id).step()) fail(StoreErrc::not_found, "no token with id " + std::to_string(id));
+  return read_token(s);
+}
+
+}  // namespace
+
+StoreResult<ApiToken> SqliteStore::create_token(std::string_view name, Role role,
+                                                std::optional<Id> depot_id, const TokenHash& hash,
+                                                std::chrono::sys_seconds at) {
+  return write([&](Db& db) {
+    if (depot_id && !db.prepare("SELECT 1 FROM depots WHERE id = ?1").bind(1, *depot_id).step()) {
+      fail(StoreErrc::constraint, "no depot with id " + std::to_string(*depot_id), "depot_id");
+    }
+    auto s = db.prepare(
+        "INSERT INTO api_tokens (name, role, depot_id, hash, created_at)"
+        " VALUES (?1, ?2, ?3, ?4, ?5)");
+    s.bind(1, name).bind(2, to_string(role)).bind(3, depot_id);
+    s.bind_blob(4, hash.bytes.data(), hash.bytes.size()).bind(5, to_db(at));
+    s.run();
+    return token_by_id(db, db.last_insert_id());
+  });
+}
+
+StoreResult<ApiToken> SqliteStore::find_token(const TokenHash& hash) {
+  return read([&](Db& db) {
+    auto s = db.prepare(std::string(kTokenSelect) + " WHERE t.hash = ?1");
+    if (!s.bind_blob(1, hash.bytes.data(), hash.bytes.size()).step()) {
+      fail(StoreErrc::not_found, "no such token");
+    }
+    return read_token(s);
+  });
+}
+
+StoreResult<Page<ApiToken>> SqliteStore::list_tokens(const PageRequest& page) {
+  return read([&](Db& db) {
+    const std::int64_t limit = page_limit(page);
+    auto s = db.prepare(std::string(kTokenSelect) + " WHERE t.id > ?1 ORDER BY t.id LIMIT ?2");
+    s.bind(1, page_after(page)).bind(2, limit + 1);
+    Page<ApiToken> out;
+    while (s.step()) out.items.push_back(read_token(s));
+    if (static_cast<std::int64_t>(out.items.size()) > limit) {
+      out.items.pop_back();
+      out.next_cursor = encode_cursor(out.items.back().id);
+    }
+    return out;
+  });
+}
+
+StoreResult<ApiToken> SqliteStore::revoke_token(Id id, std::chrono::sys_seconds at) {
+  return write([&](Db& db) {
+    token_by_id(db, id);
+    db.prepare("UPDATE api_tokens SET revoked_at = coalesce(revoked_at, ?2) WHERE id = ?1")
+        .bind(1, id)
+        .bind(2, to_db(at))
+        .run();
+    return token_by_id(db, id);
+  });
+}
+
+}  // namespace pbfleet::storage::sqlite
