@@ -7,9 +7,11 @@
 
 namespace pbfleet::models {
 
-// Range the composition tables cover (SG 25/25).
+// Range the composition tables cover (SG 25/25): pure water to 50 wt %
+// H2SO4, the last row of the CRC density table used (SG 25/25 1.3956,
+// rounded down).
 inline constexpr SpecificGravity kMinTableSg{1.000};
-inline constexpr SpecificGravity kMaxTableSg{1.400};
+inline constexpr SpecificGravity kMaxTableSg{1.395};
 
 // Weight percent H2SO4 of an electrolyte with this SG 25/25.
 // Error (field "sg") outside the density table's range.

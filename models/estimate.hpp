@@ -5,6 +5,7 @@
 
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "models/battery.hpp"
@@ -59,7 +60,30 @@ struct EstimateOutput {
   std::vector<std::string> notes;             // sentences for a person
 };
 
-// Runs the chain. Error names the input field and the allowed range.
+// Stable flag words in EstimateOutput::flags.
+inline constexpr std::string_view kFlagOcvUnsettled = "ocv_unsettled";
+inline constexpr std::string_view kFlagOcvOutsideModel = "ocv_outside_model";
+inline constexpr std::string_view kFlagSocDisagreement = "soc_disagreement";
+inline constexpr std::string_view kFlagCellSpread = "cell_spread";
+inline constexpr std::string_view kFlagFreezeRisk = "freeze_risk";
+inline constexpr std::string_view kFlagWillNotCrank = "will_not_crank";
+inline constexpr std::string_view kFlagLowSoc = "low_soc";
+
+// SOC below which a battery is flagged low and a recharge is advised: 75 %,
+// the 12.4 V line of US Army TM 5-3805-262-20 (below it, load test / recharge).
+inline constexpr double kLowSocPct = 75.0;
+// Freeze margin below which freeze_risk is raised (degC): a 0.005 hydrometer
+// error moves the freezing point by 2-3 degC near SG 1.20, and forecasts of
+// the low miss by a few degrees (our choice, stated).
+inline constexpr double kFreezeRiskMarginC = 5.0;
+
+// Every input problem of an estimate, each naming the field (wire name) and
+// the allowed range. Empty = valid.
+FieldErrors validate_estimate_input(const EstimateInput& input);
+
+// Runs the chain. Error names the input field and the allowed range (the
+// first problem validate_estimate_input finds, or a corrected SG outside the
+// acid tables).
 Result<EstimateOutput> estimate(const EstimateInput& input);
 
 }  // namespace pbfleet::models

@@ -20,8 +20,19 @@ inline constexpr int kElectronsPerCellReaction = 2;
 // Molality range the cell model covers (mol/kg).
 inline constexpr Molality kMinModelMolality{0.1};
 inline constexpr Molality kMaxModelMolality{8.0};
+// Upper end of the activity table (Clegg, Rard & Pitzer 1994 model range);
+// above it the EMF follows Bode's measured OCV fit (see the .cpp).
+inline constexpr Molality kMaxActivityMolality{6.0};
+// Electrolyte temperatures the cell model accepts (degC); the same bounds as
+// the reading format. The temperature coefficient is linear about 25 degC.
+inline constexpr Celsius kMinModelTemperature{-60.0};
+inline constexpr Celsius kMaxModelTemperature{80.0};
+// dE/dT of the cell at open circuit, V per K (positive: a warm cell reads
+// higher). Value and its (secondary) source in the .cpp.
+inline constexpr double kCellEmfTemperatureCoefficientVPerK = 0.00025;
 
-// Standard EMF of the cell at 25 degC (V).
+// Standard EMF of the cell at 25 degC (V), calibrated to be consistent with
+// the activity data used (see the .cpp).
 Volts standard_cell_emf();
 
 // Mean stoichiometric activity coefficient gamma_pm of H2SO4 at 25 degC.

@@ -18,8 +18,20 @@ inline constexpr Hours kDefaultSettledRest{4.0};
 // SG and OCV estimates further apart than this are flagged (percentage points).
 inline constexpr double kDefaultSocDisagreementPct = 15.0;
 
-// SOC (%) from SG 25/25, linear in acid content between the battery's
-// discharged and full-charge SG; clamped to 0..100.
+// Default +/- uncertainties of the two SOC estimates, in percentage points
+// (reasoning in the .cpp; both common practice).
+inline constexpr double kDefaultSgSocUncertaintyPct = 4.0;
+inline constexpr double kDefaultOcvSocUncertaintyPct = 5.0;
+// Uncertainty given to an OCV read before the battery settled.
+inline constexpr double kUnsettledOcvUncertaintyPct = 20.0;
+// Shop voltmeter read to two decimals: +/- 0.03 V on the battery (common practice).
+inline constexpr Volts kDefaultOcvMeterError{0.03};
+// Hydrometer read to its 0.005 graduation (common practice).
+inline constexpr double kDefaultHydrometerError = 0.005;
+
+// SOC (%) from SG 25/25, linear in SG between the battery's discharged and
+// full-charge SG (as the published SG tables are); clamped to 0..100.
+// REQUIRES: spec.full_charge_sg > spec.discharged_sg.
 Percent soc_from_sg(SpecificGravity corrected, const BatterySpec& spec);
 // SOC (%) from a battery OCV at electrolyte temperature t, through the inverse
 // Nernst model to SG and then soc_from_sg. Error when the OCV is outside what
@@ -31,7 +43,16 @@ Result<Percent> soc_from_ocv(Volts ocv, Celsius t, const BatterySpec& spec);
 Percent table_soc_from_ocv(Volts ocv_12v, Chemistry chemistry);
 Percent table_soc_from_sg(SpecificGravity corrected, Chemistry chemistry);
 
+// +/- SOC points that a hydrometer error of `sg_error` means for this battery.
+double sg_soc_uncertainty_pct(const BatterySpec& spec, double sg_error = kDefaultHydrometerError);
+// +/- SOC points that a voltmeter error of `meter_error` means at this OCV,
+// through the inverse Nernst model (about 80 mV spans 10 % on a 12 V
+// flooded battery). Error as soc_from_ocv.
+Result<double> ocv_soc_uncertainty_pct(Volts ocv, Celsius t, const BatterySpec& spec,
+                                       Volts meter_error = kDefaultOcvMeterError);
+
 // True when the battery rested long enough for its OCV to be trusted.
+// An unknown rest counts as not settled.
 bool ocv_is_settled(std::optional<Hours> rest, Hours threshold = kDefaultSettledRest);
 
 struct SocInputs {
@@ -39,6 +60,9 @@ struct SocInputs {
   std::optional<Percent> from_ocv;
   bool ocv_settled = true;
   double disagreement_tolerance_pct = kDefaultSocDisagreementPct;
+  // +/- points of each estimate; the defaults above when not given.
+  std::optional<double> sg_uncertainty_pct;
+  std::optional<double> ocv_uncertainty_pct;
 };
 
 struct CombinedSoc {
