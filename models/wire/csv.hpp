@@ -85,8 +85,10 @@ std::string csv_column_for_field(std::string_view field);
 // Writes readings in the import format (header + rows), for round-trips.
 // All columns in reading_csv_columns() order, CRLF line ends, cells through
 // csv_cell. Numbers in their shortest exact form; a temperature in the unit
-// it was entered in ("-25C", "41F"; Fahrenheit written so that it reads back
-// to the same Celsius value).
+// it was entered in ("-25C", "41F"). Fahrenheit is written as the shortest
+// decimal that reads back to the very same Celsius value, which exists for
+// every value parsed from a Fahrenheit entry; any other Celsius value comes
+// back within 1e-12 C.
 std::string format_reading_csv(const std::vector<ReadingInput>& readings);
 
 }  // namespace pbfleet::models::wire
