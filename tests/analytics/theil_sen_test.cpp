@@ -1,0 +1,80 @@
+#include "models/analytics/theil_sen.hpp"
+
+#include <doctest/doctest.h>
+
+#include <vector>
+
+namespace pa = pbfleet::analytics;
+
+TEST_CASE("Theil-Sen slope is the median of the pairwise slopes on a hand-checkable set") {
+  // Worked by hand from the definition (Sen, JASA 63 (1968) 1379): the ten
+  // pairwise slopes of these five points are 2, 0.5, 4/3, 0.75, -1, 1, 1/3,
+  // 3, 1, -1; sorted: -1 -1 1/3 0.5 0.75 | 1 1 4/3 2 3; median (0.75+1)/2.
+  const std::vector<double> x{1, 2, 3, 4, 5};
+  const std::vector<double> y{2, 4, 3, 6, 5};
+  const auto fit = pa::theil_sen(x, y, 0.90);
+  REQUIRE(fit);
+  CHECK(fit->points == 5);
+  CHECK(fit->slope == doctest::Approx(0.875));
+  // Intercept median(y) - slope * median(x) = 4 - 0.875 * 3 (Conover's
+  // convention, common practice).
+  CHECK(fit->intercept == doctest::Approx(1.375));
+  // 8 of the 10 pairwise slopes are positive, like the median.
+  CHECK(fit->same_sign_fraction == doctest::Approx(0.8));
+  // Rank interval (Gilbert 1987, section 16.5, from memory): Var S =
+  // 5*4*15/18 = 16.67, C = 1.645 * 4.082 = 6.715; ranks (10 - 6.715)/2 = 1.64
+  // -> -1 and (10 + 6.715)/2 + 1 = 9.36 -> 2 + 0.36 * (3 - 2), hand-computed.
+  CHECK(fit->slope_low == doctest::Approx(-1.0));
+  CHECK(fit->slope_high == doctest::Approx(2.358).epsilon(0.002));
+  CHECK_FALSE(fit->significant_fall());
+  CHECK_FALSE(fit->significant_rise());
+}
+
+TEST_CASE("one wild point does not move the Theil-Sen slope of an exact line") {
+  // y = 2x + 1 with one reading mistyped as 100: 36 of the 45 pairwise slopes
+  // are exactly 2, so the median is 2 (breakdown point about 29 %, Sen 1968).
+  std::vector<double> x, y;
+  for (int i = 0; i < 10; ++i) {
+    x.push_back(i);
+    y.push_back(2.0 * i + 1.0);
+  }
+  y[6] = 100.0;
+  const auto fit = pa::theil_sen(x, y);
+  REQUIRE(fit);
+  CHECK(fit->slope == doctest::Approx(2.0));
+  CHECK(fit->significant_rise());
+}
+
+TEST_CASE("an exact falling line gives its slope with every pair agreeing") {
+  std::vector<double> x, y;
+  for (int i = 0; i < 12; ++i) {
+    x.push_back(7.0 * i);
+    y.push_back(1.265 - 0.0001 * 7.0 * i);
+  }
+  const auto fit = pa::theil_sen(x, y);
+  REQUIRE(fit);
+  CHECK(fit->slope == doctest::Approx(-0.0001));
+  CHECK(fit->same_sign_fraction == doctest::Approx(1.0));
+  CHECK(fit->significant_fall());
+  CHECK(fit->at(0.0) == doctest::Approx(1.265));
+  CHECK(fit->at(70.0, -0.0002) == doctest::Approx(fit->at(fit->centre_x) - 0.0002 * (70.0 - fit->centre_x)));
+}
+
+TEST_CASE("a trend needs two points with different x") {
+  const std::vector<double> one{1.0};
+  CHECK_FALSE(pa::theil_sen(one, one));
+  const std::vector<double> same_x{3.0, 3.0, 3.0};
+  const std::vector<double> ys{1.0, 2.0, 3.0};
+  CHECK_FALSE(pa::theil_sen(same_x, ys));
+}
+
+TEST_CASE("normal quantiles match the printed table") {
+  // Upper percentage points of the standard normal distribution:
+  // z(0.95) = 1.644854, z(0.975) = 1.959964, z(0.995) = 2.575829
+  // (Abramowitz & Stegun, Handbook of Mathematical Functions, Table 26.5;
+  // from memory).
+  CHECK(pa::normal_quantile(0.95) == doctest::Approx(1.644854).epsilon(1e-6));
+  CHECK(pa::normal_quantile(0.975) == doctest::Approx(1.959964).epsilon(1e-6));
+  CHECK(pa::normal_quantile(0.995) == doctest::Approx(2.575829).epsilon(1e-6));
+  CHECK(pa::normal_quantile(0.5) == doctest::Approx(0.0));
+}
