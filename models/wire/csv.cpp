@@ -116,6 +116,7 @@ class Tokenizer {
 
 bool needs_quotes(std::string_view s) {
   if (s.find_first_of(",\"\r\n") != std::string_view::npos) return true;
+  if (s.starts_with(kUtf8Bom)) return true;  // else dropped as a BOM at the document start
   return !s.empty() && (s.front() == ' ' || s.front() == '\t' || s.back() == ' ' || s.back() == '\t');
 }
 

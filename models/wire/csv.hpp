@@ -33,7 +33,8 @@ Result<std::vector<CsvRow>> parse_csv(std::string_view text);
 //
 // Precisely: text matching ^'*[=+-@] that is not a decimal number (see
 // text::is_decimal) gets one leading '; the cell is quoted when it holds a
-// comma, quote, CR or LF or starts or ends with a space or tab.
+// comma, quote, CR or LF, starts with a UTF-8 BOM, or starts or ends with a
+// space or tab.
 std::string csv_cell(std::string_view text);
 
 // Undoes the formula guard of csv_cell: a cell matching ^'+[=+-@] loses one

@@ -89,6 +89,8 @@ FieldErrors validate_reading(const ReadingInput& reading, std::chrono::sys_secon
 
 // "41F", "5C", "5 °C", "-25c", "5" (bare = Celsius) -> temperature.
 // Error names `field` and the accepted forms and range.
+// Checks the form only, plus a physical band (absolute zero to 1000 C);
+// the -60..80 C range is validate_reading's.
 Result<EnteredTemperature> parse_temperature(std::string_view text, std::string_view field);
 
 // RFC 3339 timestamp ("2026-11-30T07:15:00Z", offsets allowed) -> UTC.

@@ -1,7 +1,7 @@
 // The reading import/export format over the RFC 4180 tokenizer.
 #include <algorithm>
 #include <array>
-#include <cstdio>
+#include <cmath>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -197,16 +197,24 @@ class RowReader {
 // Celsius value as text in its entered unit, exact on re-import.
 std::string temperature_text(const EnteredTemperature& t) {
   if (t.unit == TempUnit::c) return text::format_shortest(t.value.value) + "C";
+  // Converting back and forth may land an ulp or two away from the number the
+  // crew typed, so look at the doubles around the converted value and write
+  // the shortest one that reads back to the very same Celsius value ("41F").
+  constexpr int kUlpsEachWay = 4;
   const double f = fahrenheit_from_celsius(t.value);
-  // The shortest decimal that converts back to the very same Celsius value;
-  // usually the number the crew typed ("41F").
-  for (int digits = 1; digits <= 17; ++digits) {
-    char buf[40];
-    std::snprintf(buf, sizeof buf, "%.*g", digits, f);
-    const auto back = text::parse_decimal(buf);
-    if (back && celsius_from_fahrenheit(*back).value == t.value.value) return std::string(buf) + "F";
+  std::string best;
+  double below = f, above = f;
+  for (int step = 0; step <= kUlpsEachWay; ++step) {
+    for (const double g : {below, above}) {
+      if (celsius_from_fahrenheit(g).value != t.value.value) continue;
+      std::string s = text::format_shortest(g);
+      if (best.empty() || s.size() < best.size()) best = std::move(s);
+    }
+    below = std::nextafter(below, -HUGE_VAL);
+    above = std::nextafter(above, HUGE_VAL);
   }
-  return text::format_shortest(f) + "F";  // no exact form: nearest, within 1e-12 C
+  if (best.empty()) best = text::format_shortest(f);  // no exact form: within 1e-12 C
+  return best + "F";
 }
 
 template <class Quantity>

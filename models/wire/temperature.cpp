@@ -11,6 +11,13 @@ namespace {
 constexpr std::string_view kDegreeSign = "\xC2\xB0";       // U+00B0 DEGREE SIGN
 constexpr std::string_view kOrdinalIndicator = "\xC2\xBA";  // U+00BA, often typed for a degree
 
+// Physically possible band for any number called a temperature: not below
+// absolute zero (-273.15 C, SI definition of the kelvin), and not above a
+// bound far beyond any reading (1000 C; larger numbers are typing errors and
+// would overflow when converted to Fahrenheit for display).
+constexpr double kAbsoluteZeroC = -kCelsiusToKelvinOffset;
+constexpr double kMaxParsedC = 1000.0;
+
 constexpr std::string_view kTemperatureForms =
     "a number with an optional unit C or F, e.g. 5C, 41F, -25 \xC2\xB0" "C; a bare number is C; "
     "-60 to 80 C";
@@ -55,8 +62,13 @@ Result<EnteredTemperature> parse_temperature(std::string_view text, std::string_
   rest = text::trim(rest);
   const auto number = text::parse_decimal(rest);
   if (!number) return bad_temperature(field, whole);
-  if (unit == TempUnit::f) return EnteredTemperature{celsius_from_fahrenheit(*number), TempUnit::f};
-  return EnteredTemperature{Celsius{*number}, TempUnit::c};
+  const Celsius value = unit == TempUnit::f ? celsius_from_fahrenheit(*number) : Celsius{*number};
+  if (value.value < kAbsoluteZeroC || value.value > kMaxParsedC) {
+    return Error{std::string(field),
+                 "'" + text::excerpt(whole) + "' is not a possible temperature",
+                 std::string(kTemperatureForms)};
+  }
+  return EnteredTemperature{value, unit};
 }
 
 }  // namespace pbfleet::models::wire

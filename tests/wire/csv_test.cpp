@@ -80,6 +80,7 @@ TEST_CASE("cells are quoted only when they need it") {
   CHECK(csv_cell("say \"hi\"") == "\"say \"\"hi\"\"\"");
   CHECK(csv_cell("line 1\r\nline 2") == "\"line 1\r\nline 2\"");
   CHECK(csv_cell(" padded ") == "\" padded \"");
+  CHECK(csv_cell("\xEF\xBB\xBFx") == "\"\xEF\xBB\xBFx\"");  // survives BOM removal
 }
 
 TEST_CASE("text starting with = + - @ is guarded, numbers are not") {

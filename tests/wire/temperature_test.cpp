@@ -77,3 +77,19 @@ TEST_CASE("a number with a point but no fraction digits is still a number") {
   REQUIRE(t.ok());
   CHECK(std::abs(t->value.value - celsius_from_fahrenheit(5.0).value) <= 1e-12);
 }
+
+TEST_CASE("numbers that cannot be temperatures are refused, others are left to validation") {
+  // Absolute zero is -273.15 C = -459.67 F (SI definition of the kelvin).
+  const std::string_view impossible[] = {"-273.16C", "-459.68F", "1000.01C", "1e308F", "-1e308"};
+  for (const auto text : impossible) {
+    CAPTURE(text);
+    const auto t = parse_temperature(text, "electrolyte_temp");
+    REQUIRE_FALSE(t.ok());
+    CHECK(t.error().detail.find("not a possible temperature") != std::string::npos);
+  }
+  const std::string_view possible[] = {"-273.15C", "-459.67F", "1000C", "-61C", "81C"};
+  for (const auto text : possible) {
+    CAPTURE(text);
+    CHECK(parse_temperature(text, "electrolyte_temp").ok());
+  }
+}
