@@ -32,7 +32,7 @@ inline sys_seconds days_before_now(double days) {
 // What a true battery state looks like at one reading.
 struct Truth {
   double cell_sg = 1.265;          // true corrected SG 25/25 of every cell
-  std::vector<double> cells_sg;    // per-cell override (size = cells)
+  std::vector<double> cells_sg{};  // per-cell override (size = cells)
   double electrolyte_c = 5.0;
   double rest_h = 12.0;
   bool with_ocv = true;
