@@ -64,6 +64,10 @@ SqliteStore::SqliteStore(SqliteOptions options) : options_(std::move(options)) {
   }
   writer_ = std::make_unique<Db>(options_.file, Db::Mode::read_write_create);
   configure_writer(*writer_, options_.busy_timeout);
+  if (options_.max_size_bytes > 0) {
+    const auto page = static_cast<std::uint64_t>(writer_->query_int("PRAGMA page_size"));
+    writer_->exec("PRAGMA max_page_count = " + std::to_string(options_.max_size_bytes / page));
+  }
   migrate(*writer_, embedded_migrations(),
           std::chrono::time_point_cast<std::chrono::seconds>(std::chrono::system_clock::now()));
 }

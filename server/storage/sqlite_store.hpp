@@ -17,6 +17,7 @@
 #pragma once
 
 #include <chrono>
+#include <cstdint>
 #include <filesystem>
 #include <memory>
 
@@ -29,6 +30,9 @@ struct SqliteOptions {
   std::chrono::milliseconds busy_timeout{5000};
   std::size_t max_readers = 8;
   bool read_only = false;                    // open for reads only (no migration)
+  // Cap on the database size; 0 = none. A write that would grow the file
+  // beyond it fails with disk_full and stores nothing, as on a full disk.
+  std::uint64_t max_size_bytes = 0;
 };
 
 // Opens (creating if needed) and migrates the database to the schema this

@@ -1,0 +1,104 @@
+// Shared fixtures for the storage tests: a temporary folder removed at the
+// end, a freshly opened store in it, and a small fictional fleet
+// (Fjellvik Transport, North Yard depot).
+#pragma once
+
+#include <chrono>
+#include <cstdlib>
+#include <filesystem>
+#include <memory>
+#include <string>
+
+#include <doctest/doctest.h>
+
+#include "server/storage/sqlite_store.hpp"
+#include "server/storage/store.hpp"
+
+namespace pbfleet::storage::testing {
+
+using namespace std::chrono_literals;
+
+class TempDir {
+ public:
+  TempDir() {
+    std::string pattern = (std::filesystem::temp_directory_path() / "pbfleet-storage-XXXXXX").string();
+    REQUIRE(::mkdtemp(pattern.data()) != nullptr);
+    path_ = pattern;
+  }
+  ~TempDir() {
+    std::error_code ignored;
+    std::filesystem::remove_all(path_, ignored);
+  }
+  TempDir(const TempDir&) = delete;
+  TempDir& operator=(const TempDir&) = delete;
+  const std::filesystem::path& path() const { return path_; }
+  std::filesystem::path file(const char* name) const { return path_ / name; }
+
+ private:
+  std::filesystem::path path_;
+};
+
+inline std::chrono::sys_seconds at(int day, int hour = 7) {
+  using namespace std::chrono;
+  return sys_days{year{2026} / November / 1} + days{day} + hours{hour};
+}
+
+inline std::unique_ptr<Store> open_store(const std::filesystem::path& file,
+                                         std::uint64_t max_size_bytes = 0) {
+  SqliteOptions options;
+  options.file = file;
+  options.max_size_bytes = max_size_bytes;
+  auto store = open_sqlite_store(options);
+  REQUIRE_MESSAGE(store.ok(), (store.ok() ? "" : store.error().detail));
+  return std::move(store).value();
+}
+
+// A temporary database with one depot, one vehicle and one battery
+// (serial "NY-0001", fitted).
+struct Fleet {
+  TempDir dir;
+  std::unique_ptr<Store> store = open_store(dir.file("fleet.db"));
+  Depot depot;
+  Vehicle vehicle;
+  Battery battery;
+
+  Fleet() {
+    depot = store->create_depot({0, "North Yard", "Europe/Oslo", models::Celsius{-25}}).value();
+    vehicle = store->create_vehicle({0, "TR-104", depot.id, Engine::diesel, 7.7, std::nullopt})
+                  .value();
+    battery = store->create_battery(make_battery("NY-0001", vehicle.id), at(0)).value();
+  }
+
+  static Battery make_battery(std::string serial, std::optional<Id> vehicle_id = std::nullopt) {
+    Battery b;
+    b.serial = std::move(serial);
+    b.chemistry = models::Chemistry::flooded;
+    b.nominal_v = models::Volts{12};
+    b.cells = 6;
+    b.rated_cca_a = models::Amperes{800};
+    b.reserve_capacity_min = 160;
+    b.full_charge_sg = models::SpecificGravity{1.265};
+    b.installed_on = std::chrono::sys_days{std::chrono::year{2023} / 10 / 2};
+    b.vehicle_id = vehicle_id;
+    return b;
+  }
+};
+
+// A plausible weekly reading (values are illustrative, not checked).
+inline models::wire::ReadingInput reading(std::string id, std::string serial, int day) {
+  models::wire::ReadingInput r;
+  r.reading_id = std::move(id);
+  r.serial = std::move(serial);
+  r.taken_at = at(day);
+  r.ocv = models::Volts{12.62};
+  for (double sg : {1.265, 1.262, 1.260, 1.264, 1.258, 1.263}) {
+    r.cell_sg.push_back(models::SpecificGravity{sg});
+  }
+  r.electrolyte = models::wire::EnteredTemperature{models::Celsius{5}, models::wire::TempUnit::c};
+  r.rest = models::Hours{12};
+  r.logged_by = "crew-a";
+  r.source = "round";
+  return r;
+}
+
+}  // namespace pbfleet::storage::testing

@@ -1,0 +1,298 @@
+// Readings through the Store interface (SQLite): atomic idempotent batches,
+// group commit, bulk load and the report queries.
+#include "server/storage/store.hpp"  // self-containment check: first include
+
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <set>
+
+#include "fixture.hpp"
+
+namespace pbfleet::storage {
+namespace {
+
+using models::wire::ReadingInput;
+using testing::at;
+using testing::Fleet;
+using testing::reading;
+
+std::vector<ReadingInput> week_round(const std::string& prefix, int count, int day = 1) {
+  std::vector<ReadingInput> batch;
+  for (int i = 0; i < count; ++i) batch.push_back(reading(prefix + std::to_string(i), "NY-0001", day + i));
+  return batch;
+}
+
+}  // namespace
+
+TEST_CASE("a batch is stored whole and every raw field reads back unchanged") {
+  Fleet f;
+  ReadingInput r = reading("r-1", "NY-0001", 3);
+  r.electrolyte = models::wire::EnteredTemperature{models::Celsius{-5}, models::wire::TempUnit::f};
+  r.ambient = models::wire::EnteredTemperature{models::Celsius{-12.5}, models::wire::TempUnit::c};
+  r.load_test_current = models::Amperes{400};
+  r.load_test_end = models::Volts{9.9};
+  r.note = "cell 3 low; water added";
+  r.after_charge = true;
+  r.water_added = true;
+  const auto out = f.store->append_readings({r}, at(4));
+  REQUIRE(out.ok());
+  REQUIRE(out->accepted());
+  CHECK(out->stored == 1);
+  CHECK(out->replayed_count == 0);
+
+  const auto back = f.store->readings_for("NY-0001", std::nullopt, std::nullopt).value();
+  REQUIRE(back.size() == 1);
+  const StoredReading& s = back[0];
+  CHECK(s.id == out->readings[0].id);
+  CHECK(s.battery_id == f.battery.id);
+  CHECK(s.received_at == at(4));
+  CHECK(s.reading_id == "r-1");
+  CHECK(s.serial == "NY-0001");
+  CHECK(s.taken_at == at(3));
+  CHECK(s.ocv->value == 12.62);
+  REQUIRE(s.cell_sg.size() == 6);
+  CHECK(s.cell_sg[2].value == 1.260);
+  CHECK(s.electrolyte->value.value == -5.0);
+  CHECK(s.electrolyte->unit == models::wire::TempUnit::f);
+  CHECK(s.ambient->value.value == -12.5);
+  CHECK(s.rest->value == 12.0);
+  CHECK(s.load_test_current->value == 400.0);
+  CHECK(s.load_test_end->value == 9.9);
+  CHECK(s.note == "cell 3 low; water added");
+  CHECK(s.logged_by == "crew-a");
+  CHECK(s.source == "round");
+  CHECK(s.after_charge);
+  CHECK(s.water_added);
+}
+
+TEST_CASE("optional fields left out stay absent") {
+  Fleet f;
+  ReadingInput r;
+  r.reading_id = "bare";
+  r.serial = "NY-0001";
+  r.taken_at = at(1);
+  r.electrolyte = models::wire::EnteredTemperature{models::Celsius{2}, models::wire::TempUnit::c};
+  REQUIRE(f.store->append_readings({r}, at(1))->accepted());
+  const auto s = f.store->readings_for("NY-0001", {}, {}).value().at(0);
+  CHECK_FALSE(s.ocv.has_value());
+  CHECK(s.cell_sg.empty());
+  CHECK_FALSE(s.ambient.has_value());
+  CHECK_FALSE(s.rest.has_value());
+  CHECK_FALSE(s.load_test_current.has_value());
+}
+
+TEST_CASE("one unknown serial refuses the whole batch and every bad row is listed") {
+  Fleet f;
+  auto batch = week_round("atom-", 5);
+  batch[1].serial = "NO-SUCH";
+  batch[3].serial = "ALSO-MISSING";
+  const auto out = f.store->append_readings(batch, at(9));
+  REQUIRE(out.ok());
+  CHECK_FALSE(out->accepted());
+  REQUIRE(out->problems.size() == 2);
+  CHECK(out->problems[0].row == 1);
+  CHECK(out->problems[0].code == StoreErrc::not_found);
+  CHECK(out->problems[0].field == "serial");
+  CHECK(out->problems[0].detail.find("NO-SUCH") != std::string::npos);
+  CHECK(out->problems[1].row == 3);
+  CHECK(out->readings.empty());
+  CHECK(out->stored == 0);
+  CHECK(f.store->readings_count().value() == 0);
+  CHECK(f.store->readings_for("NY-0001", {}, {}).value().empty());
+}
+
+TEST_CASE("the same reading id with the same content replays the original") {
+  Fleet f;
+  const auto first = f.store->append_readings(week_round("w-", 3), at(5)).value();
+  REQUIRE(first.accepted());
+  const auto again = f.store->append_readings(week_round("w-", 3), at(6)).value();
+  REQUIRE(again.accepted());
+  CHECK(again.stored == 0);
+  CHECK(again.replayed_count == 3);
+  for (std::size_t i = 0; i < 3; ++i) {
+    CHECK(again.replayed[i]);
+    CHECK(again.readings[i].id == first.readings[i].id);
+    CHECK(again.readings[i].received_at == at(5));  // the original, not the retry
+  }
+  CHECK(f.store->readings_count().value() == 3);
+}
+
+TEST_CASE("a batch mixing new readings and replays stores only the new ones") {
+  Fleet f;
+  REQUIRE(f.store->append_readings(week_round("m-", 2), at(5))->accepted());
+  const auto out = f.store->append_readings(week_round("m-", 4), at(6)).value();
+  REQUIRE(out.accepted());
+  CHECK(out.stored == 2);
+  CHECK(out.replayed_count == 2);
+  CHECK(out.replayed == std::vector<bool>{true, true, false, false});
+  CHECK(f.store->readings_count().value() == 4);
+}
+
+TEST_CASE("the same reading id with other content is a conflict naming the id; nothing is stored") {
+  Fleet f;
+  REQUIRE(f.store->append_readings({reading("dup", "NY-0001", 1)}, at(2))->accepted());
+  auto changed = reading("dup", "NY-0001", 1);
+  changed.ocv = models::Volts{12.40};
+  const auto out = f.store->append_readings({reading("fresh", "NY-0001", 2), changed}, at(3)).value();
+  CHECK_FALSE(out.accepted());
+  REQUIRE(out.problems.size() == 1);
+  CHECK(out.problems[0].row == 1);
+  CHECK(out.problems[0].code == StoreErrc::conflict);
+  CHECK(out.problems[0].field == "reading_id");
+  CHECK(out.problems[0].detail.find("'dup'") != std::string::npos);
+  CHECK(f.store->readings_count().value() == 1);
+  CHECK(f.store->readings_for("NY-0001", {}, {}).value().at(0).ocv->value == 12.62);
+}
+
+TEST_CASE("a reading id repeated inside one batch is one reading, or a conflict if it differs") {
+  Fleet f;
+  const auto twice = f.store->append_readings({reading("x", "NY-0001", 1), reading("x", "NY-0001", 1)},
+                                              at(2)).value();
+  REQUIRE(twice.accepted());
+  CHECK(twice.stored == 1);
+  CHECK(twice.replayed == std::vector<bool>{false, true});
+  CHECK(twice.readings[0].id == twice.readings[1].id);
+
+  const auto differs = f.store->append_readings({reading("y", "NY-0001", 1), reading("y", "NY-0001", 2)},
+                                                at(2)).value();
+  CHECK_FALSE(differs.accepted());
+  CHECK(differs.problems.at(0).row == 1);
+  CHECK(f.store->readings_count().value() == 1);
+}
+
+TEST_CASE("readings without an id get a unique one and are never merged") {
+  Fleet f;
+  auto a = reading("", "NY-0001", 1);
+  const auto out = f.store->append_readings({a, a}, at(2)).value();
+  REQUIRE(out.accepted());
+  CHECK(out.stored == 2);
+  CHECK_FALSE(out.readings[0].reading_id.empty());
+  CHECK(out.readings[0].reading_id != out.readings[1].reading_id);
+}
+
+TEST_CASE("group commit accepts and refuses each batch on its own in one transaction") {
+  Fleet f;
+  REQUIRE(f.store->append_readings({reading("seen", "NY-0001", 1)}, at(1))->accepted());
+  auto bad = week_round("g2-", 2);
+  bad[1].serial = "GHOST";
+  const auto outcomes =
+      f.store->append_reading_batches({week_round("g1-", 3), bad, {reading("seen", "NY-0001", 1)},
+                                       week_round("g4-", 2, 10)},
+                                      at(20));
+  REQUIRE(outcomes.ok());
+  REQUIRE(outcomes->size() == 4);
+  CHECK((*outcomes)[0].stored == 3);
+  CHECK_FALSE((*outcomes)[1].accepted());
+  CHECK((*outcomes)[1].problems.at(0).row == 1);
+  CHECK((*outcomes)[2].replayed_count == 1);
+  CHECK((*outcomes)[3].stored == 2);
+  CHECK(f.store->readings_count().value() == 1 + 3 + 2);
+  const auto all = f.store->list_readings({}, {}).value().items;
+  for (const auto& r : all) CHECK(r.reading_id.rfind("g2-", 0) != 0);
+}
+
+TEST_CASE("the bulk loader stores a batch in one go and refuses duplicates whole") {
+  Fleet f;
+  const auto loaded = f.store->load_readings(week_round("bulk-", 50), at(1));
+  REQUIRE(loaded.ok());
+  CHECK(*loaded == 50);
+  auto again = week_round("more-", 3);
+  again.push_back(reading("bulk-7", "NY-0001", 99));
+  const auto refused = f.store->load_readings(again, at(2));
+  REQUIRE_FALSE(refused.ok());
+  CHECK(refused.error().code == StoreErrc::conflict);
+  CHECK(refused.error().detail.find("bulk-7") != std::string::npos);
+  CHECK(f.store->readings_count().value() == 50);
+  CHECK(f.store->load_readings({reading("z", "NOPE", 1)}, at(2)).error().code ==
+        StoreErrc::not_found);
+}
+
+TEST_CASE("history is one battery's readings in time order within the range") {
+  Fleet f;
+  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+  auto batch = week_round("h-", 6);            // days 1..6
+  std::reverse(batch.begin(), batch.end());    // logged out of order
+  batch.push_back(reading("other", "NY-0002", 3));
+  REQUIRE(f.store->append_readings(batch, at(10))->accepted());
+
+  const auto all = f.store->readings_for("NY-0001", {}, {}).value();
+  REQUIRE(all.size() == 6);
+  for (std::size_t i = 1; i < all.size(); ++i) CHECK(all[i - 1].taken_at < all[i].taken_at);
+  const auto some = f.store->readings_for("NY-0001", at(2), at(4)).value();
+  REQUIRE(some.size() == 3);
+  CHECK(some.front().taken_at == at(2));
+  CHECK(some.back().taken_at == at(4));
+  CHECK(f.store->readings_for("NOPE", {}, {}).error().code == StoreErrc::not_found);
+}
+
+TEST_CASE("last readings per battery come newest first, at most N each") {
+  Fleet f;
+  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+  REQUIRE(f.store->create_battery(Fleet::make_battery("STOCK-9"), at(0)).ok());
+  auto batch = week_round("l-", 20);
+  batch.push_back(reading("n2-a", "NY-0002", 5));
+  REQUIRE(f.store->append_readings(batch, at(30))->accepted());
+
+  const auto last = f.store->last_readings({f.depot.id, {}, {}}, 13).value();
+  REQUIRE(last.size() == 2);  // STOCK-9 is in no depot
+  CHECK(last[0].battery.serial == "NY-0001");
+  REQUIRE(last[0].readings.size() == 13);
+  CHECK(last[0].readings.front().taken_at == at(20));
+  CHECK(last[0].readings.back().taken_at == at(8));
+  CHECK(last[1].readings.size() == 1);
+  const auto everyone = f.store->last_readings({}, 1).value();
+  REQUIRE(everyone.size() == 3);
+  CHECK(everyone[2].readings.empty());
+}
+
+TEST_CASE("the latest settled reading skips readings with too little rest") {
+  Fleet f;
+  auto rested = reading("s-1", "NY-0001", 1);
+  rested.rest = models::Hours{30};
+  auto newer_rested = reading("s-2", "NY-0001", 2);
+  newer_rested.rest = models::Hours{8};
+  auto fresh = reading("s-3", "NY-0001", 3);
+  fresh.rest = models::Hours{1};
+  auto unknown = reading("s-4", "NY-0001", 4);
+  unknown.rest.reset();
+  REQUIRE(f.store->append_readings({rested, newer_rested, fresh, unknown}, at(5))->accepted());
+  // 6 h minimum rest for a settled OCV (common practice, see CONVENTIONS).
+  const auto six = f.store->latest_settled({}, models::Hours{6}).value();
+  REQUIRE(six.size() == 1);
+  REQUIRE(six[0].readings.size() == 1);
+  CHECK(six[0].readings[0].reading_id == "s-2");
+  const auto day = f.store->latest_settled({}, models::Hours{24}).value();
+  CHECK(day[0].readings.at(0).reading_id == "s-1");
+}
+
+TEST_CASE("reading pages cover every stored reading once while new ones arrive") {
+  Fleet f;
+  REQUIRE(f.store->load_readings(week_round("p-", 1005), at(1)).ok());
+  const auto huge = f.store->list_readings({}, {5000, ""}).value();
+  CHECK(huge.items.size() == kMaxPageLimit);
+  CHECK_FALSE(huge.next_cursor.empty());
+
+  std::set<std::string> seen;
+  PageRequest page{97, ""};
+  int extra = 0;
+  for (;;) {
+    const auto got = f.store->list_readings({"NY-0001", {}, {}}, page).value();
+    for (const auto& r : got.items) CHECK(seen.insert(r.reading_id).second);
+    REQUIRE(f.store->append_readings({reading("late-" + std::to_string(extra++), "NY-0001", 2)},
+                                     at(2))->accepted());
+    if (got.next_cursor.empty()) break;
+    page.cursor = got.next_cursor;
+  }
+  for (int i = 0; i < 1005; ++i) CHECK(seen.count("p-" + std::to_string(i)) == 1);
+}
+
+TEST_CASE("reading lists filter by time") {
+  Fleet f;
+  REQUIRE(f.store->append_readings(week_round("t-", 10), at(11))->accepted());
+  const auto page = f.store->list_readings({std::nullopt, at(3), at(5)}, {}).value();
+  CHECK(page.items.size() == 3);
+  CHECK(page.next_cursor.empty());
+}
+
+}  // namespace pbfleet::storage

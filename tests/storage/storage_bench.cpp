@@ -1,0 +1,2 @@
+#include "server/storage/store.hpp"
+int main() { return 0; }
