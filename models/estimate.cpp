@@ -166,11 +166,14 @@ void fill_freeze(EstimateOutput& out, const SgPart& part, const EstimateInput& i
   out.freeze_margin_c = in.low->value - freezes_at->value;
   if (*out.freeze_margin_c < kFreezeRiskMarginC) {
     add_flag(out, kFlagFreezeRisk);
+    const std::string where =
+        *out.freeze_margin_c < 0.0
+            ? "above the low of " + detail::fixed(in.low->value, 0) + " degC: it is expected to freeze"
+            : "within " + detail::fixed(kFreezeRiskMarginC, 0) + " degC of the low of " +
+                  detail::fixed(in.low->value, 0) + " degC";
     out.notes.push_back("Electrolyte at SG " + detail::fixed(sg.value, 3) + " freezes near " +
-                        detail::fixed(freezes_at->value, 0) + " degC, within " +
-                        detail::fixed(kFreezeRiskMarginC, 0) + " degC of the low of " +
-                        detail::fixed(in.low->value, 0) +
-                        " degC: charge it before the cold (a frozen battery can crack its case).");
+                        detail::fixed(freezes_at->value, 0) + " degC, " + where +
+                        ". Charge it before the cold: a frozen battery can crack its case.");
   }
 }
 

@@ -33,14 +33,17 @@ inline constexpr double kDefaultHydrometerError = 0.005;
 // full-charge SG (as the published SG tables are); clamped to 0..100.
 // REQUIRES: spec.full_charge_sg > spec.discharged_sg.
 Percent soc_from_sg(SpecificGravity corrected, const BatterySpec& spec);
-// SOC (%) from a battery OCV at electrolyte temperature t, through the inverse
-// Nernst model to SG and then soc_from_sg. Error when the OCV is outside what
-// any acid concentration produces.
+// SOC (%) from a battery OCV (V) at electrolyte temperature t, through the
+// inverse Nernst model (nernst.hpp) to SG and then soc_from_sg. Error (field
+// "ocv_v") when the OCV is outside what any acid concentration produces.
 Result<Percent> soc_from_ocv(Volts ocv, Celsius t, const BatterySpec& spec);
 
 // Common-practice cross-check tables (12 V, 25 % steps, per chemistry),
 // interpolated linearly and clamped. Values and their tags in the .cpp.
+// SOC (%) from the OCV of a 12 V battery at about 80 degF (common practice).
 Percent table_soc_from_ocv(Volts ocv_12v, Chemistry chemistry);
+// SOC (%) from SG 25/25 via the 80 degF SG table of US Army TM 5-4210-230-14&P-1
+// (flooded, EFB); AGM/gel from their common-practice end points.
 Percent table_soc_from_sg(SpecificGravity corrected, Chemistry chemistry);
 
 // +/- SOC points that a hydrometer error of `sg_error` means for this battery.
@@ -72,8 +75,11 @@ struct CombinedSoc {
   std::string note;              // why, in words, when disagreement is set
 };
 
-// Weighted combination of the SG- and OCV-based SOC. An unsettled OCV gets a
-// low weight. REQUIRES: at least one of from_sg / from_ocv.
+// Inverse-variance combination of the SG- and OCV-based SOC (%). An unsettled
+// OCV gets at least kUnsettledOcvUncertaintyPct, hence a low weight; a gap
+// beyond the tolerance sets `disagreement`, widens the uncertainty to half
+// the gap and names the likely causes in `note`.
+// REQUIRES: at least one of from_sg / from_ocv.
 CombinedSoc combine_soc(const SocInputs& inputs);
 
 }  // namespace pbfleet::models
