@@ -18,6 +18,7 @@
 #include <vector>
 
 #include "models/battery.hpp"
+#include "models/cranking.hpp"
 #include "models/wire/reading.hpp"
 
 namespace pbfleet::demogen {
