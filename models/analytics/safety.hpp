@@ -16,8 +16,9 @@ inline constexpr std::string_view kChargeCaution =
 
 // Shown with every equalising recommendation (flooded batteries only).
 inline constexpr std::string_view kEqualiseCaution =
-    "Equalising is a deliberate overcharge for flooded batteries only, never AGM or gel. It gasses "
-    "heavily: ventilate well, keep sparks, flames and smoking away, wear eye protection, a face "
+    "Equalising is a deliberate overcharge for flooded batteries only, never AGM or gel. It gives "
+    "off hydrogen and oxygen heavily: ventilate well, keep sparks, flames and smoking away, wear "
+    "eye protection, a face "
     "shield and acid-resistant gloves, watch electrolyte temperature and level, and keep water at "
     "hand for acid splashes. Follow the battery maker's instructions, local codes and licensed "
     "practice; if in doubt, leave it to a qualified technician.";
