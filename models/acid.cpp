@@ -25,6 +25,7 @@
 
 #include <array>
 #include <cassert>
+#include <vector>
 
 #include "models/interpolate.hpp"
 #include "models/solve.hpp"
@@ -38,15 +39,17 @@ constexpr double kWaterDensity20 = 0.99823;        // g/mL, CRC Handbook (water 
 constexpr double kWaterDensity25 = 0.99707;        // g/mL, CRC Handbook (water table)
 constexpr double kTableDeltaK = 5.0;               // 20 degC -> 25 degC
 
-// wt % and absolute density at 20 degC (g/cm3), CRC 102nd ed.; 0 % is water.
-constexpr std::array<double, 20> kWtPercent{0,  10, 12, 14, 16, 18, 20, 22, 24, 26,
-                                            28, 30, 32, 34, 36, 38, 40, 42, 44, 46};
-constexpr std::array<double, 20> kDensity20{
-    kWaterDensity20, 1.0661, 1.0802, 1.0947, 1.1094, 1.1245, 1.1398, 1.1554, 1.1714, 1.1872,
-    1.2031,          1.2191, 1.2353, 1.2518, 1.2685, 1.2855, 1.3028, 1.3205, 1.3386, 1.3570};
-// The 50 wt % row (1.3952) is appended separately to keep the arrays short.
-constexpr double kWt50 = 50.0;
-constexpr double kDensity20At50 = 1.3952;
+// wt % and absolute density at 20 degC (g/cm3), CRC 102nd ed.; 0 % is
+// water. The transcribed table has no rows between 0 and 10 % nor at 48 %:
+// PCHIP bridges those gaps. Density is nearly linear in wt % below 10 %
+// (secant slopes 0.0068 and 0.0070 per wt % on either side of the 10 % row),
+// so the bridge should stay within about 0.001 SG; battery acid seldom
+// falls below SG 1.070 (10 %).
+constexpr std::array<double, 21> kWtPercent{0,  10, 12, 14, 16, 18, 20, 22, 24, 26, 28,
+                                            30, 32, 34, 36, 38, 40, 42, 44, 46, 50};
+constexpr std::array<double, 21> kDensity20{
+    kWaterDensity20, 1.0661, 1.0802, 1.0947, 1.1094, 1.1245, 1.1398, 1.1554, 1.1714, 1.1872, 1.2031,
+    1.2191,          1.2353, 1.2518, 1.2685, 1.2855, 1.3028, 1.3205, 1.3386, 1.3570, 1.3952};
 
 // dRho/dT (g/cm3 per K) against wt %, see the header comment for sources.
 constexpr std::array<double, 7> kSlopeWt{0, 10, 20, 25, 30, 35, 40};
@@ -62,14 +65,11 @@ double sg25_from_density20(double wt_percent, double rho20) {
 // SG 25/25 as a monotone cubic of wt %, built once.
 const detail::MonotoneCubic& sg_curve() {
   static const detail::MonotoneCubic curve = [] {
-    std::vector<double> wt(kWtPercent.begin(), kWtPercent.end());
     std::vector<double> sg;
     for (std::size_t i = 0; i < kWtPercent.size(); ++i) {
       sg.push_back(sg25_from_density20(kWtPercent[i], kDensity20[i]));
     }
-    wt.push_back(kWt50);
-    sg.push_back(sg25_from_density20(kWt50, kDensity20At50));
-    return detail::MonotoneCubic(wt, sg);
+    return detail::MonotoneCubic(kWtPercent, sg);
   }();
   return curve;
 }

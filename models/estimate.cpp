@@ -184,7 +184,13 @@ std::optional<Amperes> required_at_test(const EstimateInput& in) {
 }
 
 void fill_cranking(EstimateOutput& out, const EstimateInput& in) {
-  if (!in.low || in.spec.rated_cca.value <= 0.0) return;
+  if (!in.low) return;
+  if (in.spec.rated_cca.value <= 0.0) {
+    if (required_at_test(in)) {
+      out.notes.push_back("The battery's rated CCA is unknown, so the crank margin was not computed.");
+    }
+    return;
+  }
   const Percent soc{out.soc_percent};
   out.available_cca = available_cca(in.spec.rated_cca, *in.low, soc).value;
   const auto need = required_at_test(in);

@@ -214,3 +214,14 @@ TEST_CASE("validation lists every problem at once") {
   CHECK(has("cell_sg"));  // neither SG nor OCV
   for (const auto& e : errors) CHECK_FALSE(e.allowed.empty());
 }
+
+TEST_CASE("without a rated CCA the crank margin is left out and the notes say why") {
+  auto in = flooded_input(1.265, 12.66);
+  in.low = Celsius{-20.0};
+  in.required_cca = Amperes{400.0};
+  const auto out = estimate(in);
+  REQUIRE(out.ok());
+  CHECK_FALSE(out->crank_margin.has_value());
+  CHECK_FALSE(out->available_cca.has_value());
+  CHECK(notes_mention(*out, "rated CCA is unknown"));
+}
