@@ -5,6 +5,8 @@
 // spreadsheet formula injection (CWE-1236).
 #pragma once
 
+#include <chrono>
+#include <functional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -77,6 +79,13 @@ struct ParsedReadings {
 // (bare = C); booleans true/false/1/0/yes/no in any case. Every problem in
 // every row is collected; a row with a problem gives no reading.
 Result<ParsedReadings> parse_reading_csv(std::string_view text);
+
+// validate_reading over every parsed reading, each problem with its data row
+// and its CSV column name (csv_column_for_field). `cells_of(serial)` gives the
+// battery's cell count, 0 when unknown. Added by the wire library.
+std::vector<RowError> validate_reading_rows(
+    const ParsedReadings& parsed, std::chrono::sys_seconds now,
+    const std::function<int(const std::string& serial)>& cells_of);
 
 // The CSV column that carries a validate_reading field: the temperature
 // fields "electrolyte_temp_c"/"_f" map to "electrolyte_temp" (likewise

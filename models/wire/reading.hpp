@@ -94,6 +94,12 @@ FieldErrors validate_reading(const ReadingInput& reading, std::chrono::sys_secon
 Result<EnteredTemperature> parse_temperature(std::string_view text, std::string_view field);
 
 // RFC 3339 timestamp ("2026-11-30T07:15:00Z", offsets allowed) -> UTC.
+// Strict RFC 3339 section 5.6 date-time: "YYYY-MM-DDThh:mm:ss", optional
+// ".fraction" (truncated to whole seconds), then "Z" or "+hh:mm"/"-hh:mm"
+// ("-00:00" read as UTC); 'T' and 'Z' in either case; nothing before or
+// after. Refused: other shapes, impossible dates (Feb 30, Feb 29 outside
+// leap years), hour 24, minute 60, leap second 60 (sys_seconds cannot hold
+// it), offsets beyond 23:59. Range of dates is validate_reading's.
 Result<std::chrono::sys_seconds> parse_timestamp(std::string_view text, std::string_view field);
 // UTC -> "2026-11-30T07:15:00Z".
 std::string format_timestamp(std::chrono::sys_seconds t);

@@ -294,6 +294,20 @@ std::string csv_column_for_field(std::string_view field) {
   return std::string(field);
 }
 
+std::vector<RowError> validate_reading_rows(
+    const ParsedReadings& parsed, std::chrono::sys_seconds now,
+    const std::function<int(const std::string& serial)>& cells_of) {
+  std::vector<RowError> errors;
+  for (std::size_t i = 0; i < parsed.readings.size(); ++i) {
+    const ReadingInput& r = parsed.readings[i];
+    for (auto& e : validate_reading(r, now, cells_of ? cells_of(r.serial) : 0)) {
+      e.field = csv_column_for_field(e.field);
+      errors.push_back(RowError{parsed.rows[i], std::move(e)});
+    }
+  }
+  return errors;
+}
+
 std::string format_reading_csv(const std::vector<ReadingInput>& readings) {
   std::string out;
   for (std::size_t i = 0; i < kColumnCount; ++i) {

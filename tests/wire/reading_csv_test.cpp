@@ -185,6 +185,22 @@ TEST_CASE("validation field names map to their CSV columns") {
   CHECK(csv_column_for_field("ocv_v") == "ocv_v");
 }
 
+TEST_CASE("validating parsed rows names each problem by row and CSV column") {
+  const std::string doc =
+      "serial,taken_at,ocv_v,cell_sg,electrolyte_temp\n"
+      "NB-1,2026-11-30T07:15:00Z,12.5,1.26;1.25;1.27;1.26;1.25;1.26,5C\n"   // row 1: fine
+      "NB-2,2026-11-30T07:15:00Z,bad,,\n"                                   // row 2: parse error
+      "NB-3,2026-11-30T07:15:00Z,12.5,1.26;1.5;1.27,200F\n"                 // row 3: three
+      "NB/4,2026-11-30T07:15:00Z,12.5,,\n";                                 // row 4: serial
+  const auto p = parsed_ok(doc);
+  CHECK(error_list(p.errors) == "2:ocv_v");
+  const sys_seconds now = at("2026-11-30T12:00:00Z");
+  const auto errors = validate_reading_rows(p, now, [](const std::string& serial) {
+    return serial == "NB-3" ? 6 : 0;  // NB-3 is a known 12 V battery
+  });
+  CHECK(error_list(errors) == "3:cell_sg | 3:cell_sg/1 | 3:electrolyte_temp | 4:serial");
+}
+
 namespace {
 
 std::vector<ReadingInput> export_samples() {
