@@ -221,6 +221,19 @@ TEST_CASE("EMF rises monotonically with acid molality") {
   }
 }
 
+TEST_CASE("EMF rises monotonically with SG along the whole chain") {
+  // Property: SG 25/25 -> wt % -> molality -> EMF is strictly increasing
+  // over SG 1.010-1.330 in steps of 0.0005.
+  double previous = 0.0;
+  for (int i = 0; i <= 640; ++i) {
+    const double sg = 1.010 + 0.0005 * i;
+    const auto e = cell_emf_from_sg(SpecificGravity{sg}, k25);
+    REQUIRE(e.ok());
+    CHECK(e->value > previous);
+    previous = e->value;
+  }
+}
+
 TEST_CASE("inverse Nernst returns the molality within 1e-6") {
   // Property: molality_from_cell_emf(cell_emf(m)) == m over the model range.
   for (const double t : {-20.0, 0.0, 25.0, 45.0}) {
