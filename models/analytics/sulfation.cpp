@@ -1,6 +1,7 @@
 #include "models/analytics/sulfation.hpp"
 
 #include <algorithm>
+#include <cassert>
 
 #include "models/analytics/derive.hpp"
 #include "models/analytics/text.hpp"
@@ -24,7 +25,7 @@ struct Series {
 // What the assessment works from: readings and their derived values.
 struct Walk {
   std::span<const ReadingPoint> readings;
-  std::vector<DerivedReading> derived;
+  std::span<const DerivedReading> derived;
 };
 
 double undercharge_days(const Walk& w, std::chrono::sys_seconds now, double threshold, int window_days) {
@@ -230,8 +231,15 @@ std::string_view to_string(TrendBasis b) {
 
 SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono::sys_seconds now,
                                      const AnalyticsSettings& s) {
+  const auto derived = derive_all(history.readings, history.battery.spec, s);
+  return assess_sulfation(history, derived, now, s);
+}
+
+SulfationAssessment assess_sulfation(const BatteryHistory& history, std::span<const DerivedReading> derived,
+                                     std::chrono::sys_seconds now, const AnalyticsSettings& s) {
+  assert(derived.size() == history.readings.size());
   const auto& battery = history.battery;
-  const Walk w{history.readings, derive_all(history.readings, battery.spec, s)};
+  const Walk w{history.readings, derived};
   SulfationAssessment a;
   a.serial = battery.serial;
   a.depot_id = battery.depot_id;

@@ -20,6 +20,7 @@
 #include <string_view>
 #include <vector>
 
+#include "models/analytics/derive.hpp"
 #include "models/analytics/history.hpp"
 #include "models/analytics/safety.hpp"
 #include "models/analytics/theil_sen.hpp"
@@ -83,6 +84,12 @@ struct SulfationAssessment {
 // Assesses one battery's full history at `now`.
 SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono::sys_seconds now,
                                      const AnalyticsSettings& settings);
+// Same, from readings already derived (derive_all over history.readings with
+// the same settings), for a caller that caches derived values: deriving is
+// most of the cost (about 6 us per reading, mostly the inverse Nernst solve).
+// REQUIRES: derived.size() == history.readings.size().
+SulfationAssessment assess_sulfation(const BatteryHistory& history, std::span<const DerivedReading> derived,
+                                     std::chrono::sys_seconds now, const AnalyticsSettings& settings);
 
 // Assesses every in-service battery; worst class first, then exposure, then serial.
 std::vector<SulfationAssessment> sulfation_report(std::span<const BatteryHistory> fleet,

@@ -84,6 +84,17 @@ TEST_CASE("a slowly sulfating battery shows a falling trend of about the true sl
         std::string_view::npos);
 }
 
+TEST_CASE("assessing from cached derived readings gives the same verdict") {
+  const auto h = weekly_after_charge("S-3", 0.004);
+  const auto derived = pa::derive_all(h.readings, h.battery.spec, kSettings);
+  const auto cached = pa::assess_sulfation(h, derived, test_now(), kSettings);
+  const auto fresh = pa::assess_sulfation(h, test_now(), kSettings);
+  CHECK(cached.level == fresh.level);
+  REQUIRE(cached.sg_trend);
+  CHECK(cached.sg_trend->slope == fresh.sg_trend->slope);
+  CHECK(cached.reasons == fresh.reasons);
+}
+
 TEST_CASE("equalising is never recommended for an AGM battery") {
   auto h = weekly_after_charge("S-2", 0.004);
   h.battery.spec = pm::default_spec(pm::Chemistry::agm, 6);
