@@ -78,7 +78,13 @@ struct ParsedReadings {
 // ("12.65"); cell_sg is "1.265;1.260;..." ; temperatures "41F", "5C", "5"
 // (bare = C); booleans true/false/1/0/yes/no in any case. Every problem in
 // every row is collected; a row with a problem gives no reading.
+// Bounded: a cell_sg list longer than kMaxCells is one error; once
+// kMaxRowErrors errors are collected, reading stops with a last error (empty
+// field) at the row where it stopped, so the readings list is incomplete.
 Result<ParsedReadings> parse_reading_csv(std::string_view text);
+
+// Most row errors parse_reading_csv collects before it stops.
+inline constexpr std::size_t kMaxRowErrors = 1000;
 
 // validate_reading over every parsed reading, each problem with its data row
 // and its CSV column name (csv_column_for_field). `cells_of(serial)` gives the

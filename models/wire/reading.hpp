@@ -77,7 +77,8 @@ inline constexpr std::chrono::sys_days kEarliestReading{
 // Rules: serial 1..64 code points, no control characters, '/', '\\', ".." or
 // leading/trailing spaces; reading_id empty or 1..64 of [A-Za-z0-9._:-];
 // taken_at from 2000-01-01T00:00:00Z to now + 24 h; ocv_v and/or cell_sg;
-// SG 1.000..1.400 each, as many as `cells` when known, at most kMaxCells;
+// SG 1.000..1.400 each (past kMaxCells values only the count error is
+// given), as many as `cells` when known, at most kMaxCells;
 // electrolyte temperature required with cell_sg; temperatures -60..80 C;
 // ocv_v and load_test_end_v 0..2.5 V x cells (0..30 V when cells unknown);
 // rest_h 0..8784; load_test_a 0..3000 A, given together with load_test_end_v;

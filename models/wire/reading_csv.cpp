@@ -157,6 +157,10 @@ class RowReader {
     std::string_view rest = text::trim(raw);
     if (rest.empty()) return;
     for (std::size_t i = 0;; ++i) {
+      if (i == std::size_t{kMaxCells}) {  // bound the work and the error list
+        return fail("cell_sg", "cell_sg has more than " + std::to_string(kMaxCells) + " values",
+                    "1 to " + std::to_string(kMaxCells) + " values, one per cell");
+      }
       const auto cut = rest.find(';');
       const auto item = text::trim(rest.substr(0, cut));
       if (const auto v = text::parse_decimal(item)) {
@@ -165,7 +169,7 @@ class RowReader {
         fail("cell_sg/" + std::to_string(i), "'" + text::excerpt(item) + "' is not an SG value",
              kSgListForm);
       }
-      if (cut == std::string_view::npos) break;
+      if (cut == std::string_view::npos) return;
       rest.remove_prefix(cut + 1);
     }
   }
@@ -275,6 +279,12 @@ Result<ParsedReadings> parse_reading_csv(std::string_view text) {
                                      " fields; the header has " + std::to_string(width),
                              std::to_string(width) + " fields, as in the header"}});
       continue;
+    }
+    if (out.errors.size() >= kMaxRowErrors) {
+      out.errors.push_back(RowError{
+          number, FieldError{"", "too many errors: reading stopped at this row",
+                             "at most " + std::to_string(kMaxRowErrors) + " errors reported"}});
+      break;
     }
     if (auto reading = RowReader(*layout, row, number, out.errors).read()) {
       out.readings.push_back(std::move(*reading));

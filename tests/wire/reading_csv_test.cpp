@@ -140,6 +140,29 @@ TEST_CASE("every bad cell in every row is reported with its row and column") {
   }
 }
 
+TEST_CASE("an overlong SG list is one error, not one per value") {
+  std::string list = "1.26";
+  for (int i = 0; i < 1000; ++i) list += ";x";
+  const auto p = parsed_ok("serial,taken_at,cell_sg,electrolyte_temp\nNB-1,2026-11-30T07:15:00Z," +
+                           list + ",5C\n");
+  // 23 bad values fit in the first 24, then the list is cut off.
+  REQUIRE(p.errors.size() == 24);
+  CHECK(p.errors.front().error.field == "cell_sg/1");
+  CHECK(p.errors.back().error.field == "cell_sg");
+  CHECK(p.readings.empty());
+}
+
+TEST_CASE("a document full of bad rows stops after the error limit") {
+  std::string doc = "serial,taken_at,ocv_v\n";
+  for (int i = 0; i < 3000; ++i) doc += "NB-1,2026-11-30T07:15:00Z,bad\n";
+  const auto p = parsed_ok(doc);
+  REQUIRE(p.errors.size() == kMaxRowErrors + 1);
+  CHECK(p.errors[kMaxRowErrors - 1].row == static_cast<int>(kMaxRowErrors));
+  CHECK(p.errors.back().row == static_cast<int>(kMaxRowErrors) + 1);
+  CHECK(p.errors.back().error.field.empty());
+  CHECK(p.errors.back().error.detail.find("too many errors") != std::string::npos);
+}
+
 TEST_CASE("booleans read true/false, 1/0 and yes/no in any case; empty is false") {
   struct Case {
     std::string_view cell;

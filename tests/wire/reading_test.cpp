@@ -116,6 +116,15 @@ TEST_CASE("the number of SG values must match a known cell count") {
   });
 }
 
+TEST_CASE("a huge SG list gives one count error and range errors for the first 24 only") {
+  ReadingInput r = good_reading();
+  r.cell_sg = sg_values(100000, 0.5);
+  const auto errors = validate_reading(r, kNow, 0);
+  REQUIRE(errors.size() == 25);
+  CHECK(errors[0].field == "cell_sg");
+  CHECK(errors[24].field == "cell_sg/23");
+}
+
 TEST_CASE("open-circuit voltage is 0 to 2.5 V per cell, or 0 to 30 V when cells are unknown") {
   check_cases({
       {"0 V", [](auto& r) { r.ocv = Volts{0.0}; }, 6, {}},
