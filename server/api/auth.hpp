@@ -1,0 +1,82 @@
+// Bearer-token authentication and the role allow-lists of routes.
+//
+// The raw token is hashed (SHA-256) on arrival and only the hash is looked
+// up; the store compares hashes in constant time. Known tokens are cached
+// briefly; revoking through the API drops the cache entry at once, so a
+// revoked token gets 401 on the very next request. Repeated bad tokens from
+// one address are answered 429 for a while (guessing is throttled).
+#pragma once
+
+#include <array>
+#include <chrono>
+#include <cstdint>
+#include <map>
+#include <mutex>
+#include <optional>
+#include <string>
+#include <variant>
+
+#include "server/http/message.hpp"
+#include "server/storage/store.hpp"
+
+namespace pbfleet::api {
+
+// Set of roles allowed on a route (bit per storage::Role).
+using RoleSet = std::uint8_t;
+[[nodiscard]] constexpr RoleSet role_bit(storage::Role role) {
+  return static_cast<RoleSet>(1U << static_cast<unsigned>(role));
+}
+inline constexpr RoleSet kCrew = role_bit(storage::Role::crew);
+inline constexpr RoleSet kTechnician = role_bit(storage::Role::technician);
+inline constexpr RoleSet kManager = role_bit(storage::Role::manager);
+inline constexpr RoleSet kAdmin = role_bit(storage::Role::admin);
+inline constexpr RoleSet kAnyRole = kCrew | kTechnician | kManager | kAdmin;
+inline constexpr RoleSet kPublic = 0;  // no token needed
+
+// Who is calling: the token's identity, never the token itself.
+struct Caller {
+  storage::Id token_id = 0;
+  std::string token_name;
+  storage::Role role = storage::Role::crew;
+  std::optional<storage::Id> depot_id;  // scope; nullopt = every depot
+};
+
+struct AuthLimits {
+  // Bad tokens one address may present per window before getting 429.
+  int failures_per_window = 20;
+  std::chrono::seconds window{60};
+  // How long a known token stays cached (bounds the delay of a revocation
+  // made outside this process, e.g. by `pbfleetd token revoke`).
+  std::chrono::seconds cache_ttl{2};
+};
+
+class Authenticator {
+ public:
+  Authenticator(storage::Store& store, AuthLimits limits = {});
+
+  // The caller, or the problem response (401, 429, 503) to send.
+  std::variant<Caller, http::Response> authenticate(const http::Request& request);
+  // Drops every cached token (call after a revocation).
+  void forget_cached();
+
+ private:
+  using Clock = std::chrono::steady_clock;
+  struct Cached {
+    storage::ApiToken token;
+    Clock::time_point until;
+  };
+  bool throttled(const std::string& address);
+  void note_failure(const std::string& address);
+  std::optional<storage::ApiToken> cached(const storage::TokenHash& hash);
+
+  storage::Store& store_;
+  AuthLimits limits_;
+  std::mutex mutex_;
+  std::map<std::array<unsigned char, 32>, Cached> cache_;
+  std::map<std::string, std::pair<Clock::time_point, int>> failures_;  // address -> (window start, count)
+};
+
+// The address part of "host:port" (or "[v6]:port").
+std::string peer_address(const std::string& peer);
+
+}  // namespace pbfleet::api

@@ -1,0 +1,58 @@
+// pbfleetd configuration: a `key = value` file, then PBFLEET_<KEY>
+// environment variables, then command-line flags, each overriding the last.
+//
+// Keys (flags are the same names with '-' for '_', e.g. --log-level):
+//   listen              HOST:PORT, default 127.0.0.1:8470 (loopback)
+//   data                data folder; the database is DATA/pbfleet.db
+//   db                  database file (overrides data)
+//   log_level           trace, debug, info, warn, error (default info)
+//   backup_dir          folder for POST /v1/admin/backup (default DATA/backups
+//                       or beside the database)
+//   body_limit_bytes    default 1048576 (1 MiB)
+//   header_limit_bytes  default 8192
+//   header_timeout_ms   default 10000
+//   body_timeout_ms     default 30000
+//   write_timeout_ms    default 30000
+//   max_connections     default 512
+//   io_threads          default 2
+//   worker_threads      default 8
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "models/result.hpp"
+#include "server/http/server.hpp"
+
+namespace pbfleet::api {
+
+struct Config {
+  std::string host = "127.0.0.1";
+  std::uint16_t port = 8470;
+  std::filesystem::path db;          // resolved database file
+  std::filesystem::path backup_dir;  // resolved backup folder
+  std::string log_level = "info";
+  http::ServerOptions server;        // limits and threads
+};
+
+using Settings = std::map<std::string, std::string>;
+
+// Every key the configuration knows, in documentation order.
+const std::vector<std::string>& config_keys();
+
+// Reads a `key = value` file ('#' starts a comment). Error names the line.
+models::Result<Settings> read_config_file(const std::filesystem::path& file);
+// PBFLEET_<KEY> variables present in the environment.
+Settings settings_from_environment();
+// Builds the configuration from merged settings. Error names the key and
+// the accepted form.
+models::Result<Config> make_config(const Settings& settings);
+
+// "HOST:PORT" -> host and port; nullopt when malformed.
+std::optional<std::pair<std::string, std::uint16_t>> parse_listen(const std::string& text);
+
+}  // namespace pbfleet::api

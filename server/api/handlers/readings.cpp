@@ -1,0 +1,178 @@
+// POST /v1/readings (JSON object, JSON array or text/csv; atomic batch,
+// idempotent on reading_id) and GET /v1/readings (paged list).
+//
+// parse (JSON or CSV) -> check_batch (battery, cell count, validate_reading)
+// -> group-commit writer -> 201 with derived values after COMMIT.
+#include "models/analytics/derive.hpp"
+#include "models/wire/csv.hpp"
+#include "server/api/handlers/common.hpp"
+#include "server/api/handlers/handlers.hpp"
+#include "server/api/reading_codec.hpp"
+#include "server/api/services/analytics_adapter.hpp"
+#include "server/api/services/reading_intake.hpp"
+
+namespace pbfleet::api::handlers {
+
+namespace wire = models::wire;
+using nlohmann::json;
+
+namespace {
+
+// A decoded body: the readings and how to name their fields in problems.
+struct Parsed {
+  std::vector<wire::ReadingInput> readings;
+  FieldNamer name;
+};
+
+std::variant<Parsed, http::Response> parse_json(const Call& call) {
+  auto body = json_body(call.request);
+  if (auto* refused = std::get_if<http::Response>(&body)) return std::move(*refused);
+  const json& doc = std::get<json>(body);
+  const bool batch = doc.is_array();
+  Issues issues;
+  Parsed out;
+  auto read_one = [&](const json& item, const std::string& base) {
+    FieldReader in(item, base, issues);
+    out.readings.push_back(read_reading(in));
+  };
+  if (batch) {
+    for (std::size_t i = 0; i < doc.size(); ++i) read_one(doc[i], "/" + std::to_string(i));
+  } else {
+    read_one(doc, "");
+  }
+  if (!issues.empty()) return issues.to_problem();
+  out.name = [batch](std::size_t i, const std::string& field) {
+    return ProblemField{(batch ? "/" + std::to_string(i) : std::string{}) + "/" + field, {}, {}, {}};
+  };
+  return out;
+}
+
+std::variant<Parsed, http::Response> parse_csv(const Call& call) {
+  auto parsed = wire::parse_reading_csv(call.request.body);
+  if (!parsed) {
+    const auto& e = parsed.error();
+    return problem(ProblemKind::malformed_body, e.detail,
+                   {{e.field.empty() ? "header" : e.field, e.detail, e.allowed, {}}});
+  }
+  if (!parsed->errors.empty()) {
+    std::vector<ProblemField> fields;
+    for (const auto& e : parsed->errors)
+      fields.push_back({wire::csv_column_for_field(e.error.field), e.error.detail,
+                        e.error.allowed, e.row});
+    return problem(ProblemKind::validation_failed,
+                   std::to_string(fields.size()) + " problem(s) in the CSV; nothing was stored",
+                   fields);
+  }
+  Parsed out;
+  out.readings = std::move(parsed->readings);
+  out.name = [rows = std::move(parsed->rows)](std::size_t i, const std::string& field) {
+    return ProblemField{wire::csv_column_for_field(field), {}, {}, rows.at(i)};
+  };
+  return out;
+}
+
+std::variant<Parsed, http::Response> parse_body(const Call& call) {
+  const std::string type = media_type(call.request.header("content-type"));
+  if (type == "text/csv") return parse_csv(call);
+  return parse_json(call);  // refuses other media types with 415
+}
+
+// Rows the store refused (reading_id reused with other content, or a
+// battery that vanished meanwhile): 409 when any conflict, else 422.
+http::Response refused_rows(const storage::AppendOutcome& outcome, const FieldNamer& name) {
+  std::vector<ProblemField> fields;
+  bool conflict = false;
+  for (const auto& p : outcome.problems) {
+    conflict = conflict || p.code == storage::StoreErrc::conflict;
+    auto f = name(p.row, p.field.empty() ? "reading_id" : p.field);
+    f.detail = p.detail;
+    fields.push_back(std::move(f));
+  }
+  if (conflict)
+    return problem(ProblemKind::conflict,
+                   "a reading_id was stored before with different content; nothing was stored",
+                   fields);
+  return problem(ProblemKind::validation_failed, "batch refused; nothing was stored", fields);
+}
+
+json stored_json(const storage::AppendOutcome& outcome,
+                 const std::map<std::string, storage::Battery>& batteries) {
+  const analytics::AnalyticsSettings settings;
+  json list = json::array();
+  for (std::size_t i = 0; i < outcome.readings.size(); ++i) {
+    const auto& r = outcome.readings[i];
+    json item = reading_json(r);
+    item["replayed"] = i < outcome.replayed.size() && outcome.replayed[i];
+    if (auto b = batteries.find(r.serial); b != batteries.end())
+      item["derived"] = derived_json(analytics::derive(point_of(r), spec_of(b->second), settings));
+    list.push_back(std::move(item));
+  }
+  return {{"stored", outcome.stored}, {"replayed", outcome.replayed_count}, {"readings", list}};
+}
+
+}  // namespace
+
+void post_readings(const Call& call, http::Reply reply) {
+  auto parsed = parse_body(call);
+  if (auto* refused = std::get_if<http::Response>(&parsed)) return reply(std::move(*refused));
+  auto& [readings, name] = std::get<Parsed>(parsed);
+  if (readings.empty())
+    return reply(problem(ProblemKind::validation_failed, "the batch holds no reading",
+                         {{"/", "send one reading or a non-empty array", "1 or more readings", {}}}));
+  const auto scope = call.caller ? call.caller->depot_id : std::nullopt;
+  auto checked = check_batch(call.ctx.store, readings, call.ctx.clock.now(), scope, name);
+  if (checked.storage_failed) return reply(store_problem(checked.storage_error));
+  if (!checked.problems.empty())
+    return reply(problem(ProblemKind::validation_failed,
+                         std::to_string(checked.problems.size()) +
+                             " field(s) invalid; nothing was stored",
+                         checked.problems));
+  Metrics& metrics = call.ctx.metrics;
+  auto done = [reply, name = name, batteries = std::move(checked.batteries),
+               &metrics](storage::StoreResult<storage::AppendOutcome> result) {
+    if (!result) return reply(store_problem(result.error()));
+    const auto& outcome = result.value();
+    if (!outcome.accepted()) return reply(refused_rows(outcome, name));
+    metrics.add_readings_stored(outcome.stored);
+    reply(json_response(outcome.stored > 0 ? 201 : 200, stored_json(outcome, batteries)));
+  };
+  if (!call.ctx.writer.submit(std::move(readings), std::move(done)))
+    reply(problem(ProblemKind::storage_unavailable, "too many writes queued; retry shortly"));
+}
+
+http::Response list_readings(const Call& call) {
+  Issues issues;
+  auto page = page_request(call.query("limit"), call.query("cursor"), issues);
+  storage::ReadingFilter filter;
+  if (const auto* serial = call.query("serial")) filter.serial = *serial;
+  for (const char* key : {"from", "to"}) {
+    const auto* text = call.query(key);
+    if (!text) continue;
+    auto t = wire::parse_timestamp(*text, key);
+    if (!t) {
+      issues.invalid.push_back({key, t.error().detail, t.error().allowed, {}});
+      continue;
+    }
+    (std::string_view(key) == "from" ? filter.from : filter.to) = *t;
+  }
+  if (!issues.empty()) return problem(ProblemKind::bad_query, "bad query", issues.invalid);
+  if (call.caller && call.caller->depot_id) {
+    // A depot-scoped token lists one battery at a time, within its depot.
+    if (!filter.serial)
+      return problem(ProblemKind::bad_query, "a depot-scoped token must give ?serial=",
+                     {{"serial", "required for depot-scoped tokens", "a battery serial", {}}});
+    auto battery = call.ctx.store.get_battery(*filter.serial);
+    if (!battery || !in_scope(call, battery->depot_id))
+      return problem(ProblemKind::not_found, "no battery with serial '" + *filter.serial + "'");
+  }
+  auto result = call.ctx.store.list_readings(filter, page);
+  if (!result) return store_problem(result.error());
+  json items = json::array();
+  for (const auto& r : result->items) items.push_back(reading_json(r));
+  return json_response(200, {{"items", std::move(items)},
+                             {"next_cursor", result->next_cursor.empty()
+                                                 ? json(nullptr)
+                                                 : json(result->next_cursor)}});
+}
+
+}  // namespace pbfleet::api::handlers

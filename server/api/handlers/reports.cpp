@@ -1,0 +1,116 @@
+// GET /v1/reports/{winter,sulfation,replacements,overdue}: JSON, or CSV
+// with Accept: text/csv. A depot-scoped token sees its depot only.
+#include "server/api/handlers/common.hpp"
+#include "server/api/handlers/handlers.hpp"
+#include "server/api/report_codec.hpp"
+#include "server/api/services/reports.hpp"
+
+namespace pbfleet::api::handlers {
+
+namespace {
+
+// Longest overdue threshold accepted (a year).
+constexpr int kMaxOverdueDays = 366;
+
+http::Response csv_response(std::string body) {
+  http::Response r;
+  r.content_type = "text/csv; charset=utf-8";
+  r.body = std::move(body);
+  return r;
+}
+
+// ?depot_id=, narrowed to the token's depot when it is scoped. nullopt in
+// `depot` = all depots; false when the query is bad or outside the scope.
+bool report_depot(const Call& call, std::optional<storage::Id>& depot,
+                  std::vector<ProblemField>& errors) {
+  if (const auto* text = call.query("depot_id")) {
+    depot = parse_id(*text);
+    if (!depot) errors.push_back({"depot_id", "not a depot id", "a positive whole number", {}});
+  }
+  if (call.caller && call.caller->depot_id) {
+    if (depot && depot != call.caller->depot_id)
+      errors.push_back({"depot_id", "outside the token's depot", "the token's depot", {}});
+    depot = call.caller->depot_id;
+  }
+  return errors.empty();
+}
+
+http::Response bad_query(const std::vector<ProblemField>& errors) {
+  return problem(ProblemKind::bad_query, "bad report query", errors);
+}
+
+// Winter: ?low_c= (one low for all depots), ?on=YYYY-MM-DD (cold date,
+// default today).
+bool read_cold(const Call& call, analytics::ColdSpec& cold, std::vector<ProblemField>& errors) {
+  cold.cold_date = std::chrono::floor<std::chrono::days>(call.ctx.clock.now());
+  if (const auto* on = call.query("on"); on && !on->empty()) {
+    if (auto d = parse_date(*on)) {
+      cold.cold_date = *d;
+    } else {
+      errors.push_back({"on", "not a calendar date", "YYYY-MM-DD", {}});
+    }
+  }
+  if (const auto* low = call.query("low_c"); low && !low->empty()) {
+    auto t = models::wire::parse_temperature(*low, "low_c");
+    if (t) {
+      cold.low = t->value;
+    } else {
+      errors.push_back({"low_c", t.error().detail, t.error().allowed, {}});
+    }
+  }
+  return errors.empty();
+}
+
+}  // namespace
+
+http::Response winter_report(const Call& call) {
+  std::optional<storage::Id> depot;
+  analytics::ColdSpec cold;
+  std::vector<ProblemField> errors;
+  if (!report_depot(call, depot, errors) || !read_cold(call, cold, errors)) return bad_query(errors);
+  auto report = build_winter_report(call.ctx.store, depot, cold, call.ctx.clock.now(), {});
+  if (!report) return store_problem(report.error());
+  if (wants_csv(call.request)) return csv_response(winter_csv(*report));
+  return json_response(200, winter_json(*report));
+}
+
+http::Response sulfation_report(const Call& call) {
+  std::optional<storage::Id> depot;
+  std::vector<ProblemField> errors;
+  if (!report_depot(call, depot, errors)) return bad_query(errors);
+  auto report = build_sulfation_report(call.ctx.store, depot, call.ctx.clock.now(), {});
+  if (!report) return store_problem(report.error());
+  if (wants_csv(call.request)) return csv_response(sulfation_csv(*report));
+  return json_response(200, sulfation_json(*report));
+}
+
+http::Response replacement_report(const Call& call) {
+  std::optional<storage::Id> depot;
+  std::vector<ProblemField> errors;
+  if (!report_depot(call, depot, errors)) return bad_query(errors);
+  auto report = build_replacement_report(call.ctx.store, depot, call.ctx.clock.now(), {});
+  if (!report) return store_problem(report.error());
+  if (wants_csv(call.request)) return csv_response(replacement_csv(*report));
+  return json_response(200, replacement_json(*report));
+}
+
+http::Response overdue_report(const Call& call) {
+  std::optional<storage::Id> depot;
+  std::vector<ProblemField> errors;
+  int days = analytics::AnalyticsSettings{}.overdue_days;
+  if (const auto* text = call.query("days"); text && !text->empty()) {
+    auto id = parse_id(*text);
+    if (!id || *id > kMaxOverdueDays) {
+      errors.push_back({"days", "not a number of days", "1 to " + std::to_string(kMaxOverdueDays), {}});
+    } else {
+      days = static_cast<int>(*id);
+    }
+  }
+  if (!report_depot(call, depot, errors)) return bad_query(errors);
+  auto report = build_overdue_report(call.ctx.store, depot, call.ctx.clock.now(), days);
+  if (!report) return store_problem(report.error());
+  if (wants_csv(call.request)) return csv_response(overdue_csv(*report));
+  return json_response(200, overdue_json(*report, days));
+}
+
+}  // namespace pbfleet::api::handlers

@@ -1,0 +1,152 @@
+#include "server/api/reading_codec.hpp"
+
+#include <limits>
+
+namespace pbfleet::api {
+
+using nlohmann::json;
+namespace wire = models::wire;
+
+namespace {
+
+constexpr double kAny = std::numeric_limits<double>::max();  // ranges: validate_reading
+
+std::optional<double> any_number(FieldReader& in, std::string_view key) {
+  return in.number(key, false, -kAny, kAny, "a number");
+}
+
+// "<base>_c" or "<base>_f", not both.
+std::optional<wire::EnteredTemperature> read_temperature(FieldReader& in, const std::string& base) {
+  auto c = any_number(in, base + "_c");
+  auto f = any_number(in, base + "_f");
+  if (c && f) {
+    in.invalid(base + "_f", "give the temperature once", base + "_c or " + base + "_f");
+    return std::nullopt;
+  }
+  if (c) return wire::EnteredTemperature{models::Celsius{*c}, wire::TempUnit::c};
+  if (f) return wire::EnteredTemperature{models::celsius_from_fahrenheit(*f), wire::TempUnit::f};
+  return std::nullopt;
+}
+
+void read_cells(FieldReader& in, wire::ReadingInput& r) {
+  const json* cells = in.raw("cell_sg", false);
+  if (!cells) return;
+  if (!cells->is_array()) {
+    in.invalid("cell_sg", "expected an array of numbers", "one SG per cell, e.g. [1.265, 1.260]");
+    return;
+  }
+  for (std::size_t i = 0; i < cells->size(); ++i) {
+    const json& v = (*cells)[i];
+    if (!v.is_number()) {
+      in.invalid("cell_sg/" + std::to_string(i), "expected a number", "1.000 to 1.400");
+      continue;
+    }
+    r.cell_sg.push_back(models::SpecificGravity{v.get<double>()});
+  }
+}
+
+void read_times(FieldReader& in, wire::ReadingInput& r) {
+  if (auto t = in.text("taken_at", true, 40)) {
+    auto parsed = wire::parse_timestamp(*t, "taken_at");
+    if (parsed) {
+      r.taken_at = *parsed;
+    } else {
+      in.invalid("taken_at", parsed.error().detail, parsed.error().allowed);
+    }
+  }
+}
+
+template <class T>
+json optional_value(const std::optional<T>& v) {
+  return v ? json(v->value) : json(nullptr);
+}
+
+json temperature_json(const std::optional<wire::EnteredTemperature>& t) {
+  return t ? json(t->value.value) : json(nullptr);
+}
+
+json unit_json(const std::optional<wire::EnteredTemperature>& t) {
+  if (!t) return nullptr;
+  return t->unit == wire::TempUnit::f ? "F" : "C";
+}
+
+template <class T>
+json optional_json(const std::optional<T>& v) {
+  return v ? json(*v) : json(nullptr);
+}
+
+}  // namespace
+
+wire::ReadingInput read_reading(FieldReader& in) {
+  wire::ReadingInput r;
+  // Strings are length-checked by validate_reading; this bound only keeps
+  // absurd inputs out of memory.
+  constexpr std::size_t kTextCap = 4096;
+  if (auto v = in.text("reading_id", false, kTextCap)) r.reading_id = *v;
+  if (auto v = in.text("serial", true, kTextCap)) r.serial = *v;
+  read_times(in, r);
+  if (auto v = any_number(in, "ocv_v")) r.ocv = models::Volts{*v};
+  read_cells(in, r);
+  r.electrolyte = read_temperature(in, "electrolyte_temp");
+  r.ambient = read_temperature(in, "ambient_temp");
+  if (auto v = any_number(in, "rest_h")) r.rest = models::Hours{*v};
+  if (auto v = any_number(in, "load_test_a")) r.load_test_current = models::Amperes{*v};
+  if (auto v = any_number(in, "load_test_end_v")) r.load_test_end = models::Volts{*v};
+  if (auto v = in.text("logged_by", false, kTextCap)) r.logged_by = *v;
+  if (auto v = in.text("source", false, kTextCap)) r.source = *v;
+  if (auto v = in.text("note", false, kTextCap)) r.note = *v;
+  if (auto v = in.boolean("after_charge", false)) r.after_charge = *v;
+  if (auto v = in.boolean("water_added", false)) r.water_added = *v;
+  in.finish();
+  return r;
+}
+
+json reading_json(const wire::ReadingInput& r) {
+  json cells = json::array();
+  for (const auto& sg : r.cell_sg) cells.push_back(sg.value);
+  return {{"reading_id", r.reading_id},
+          {"serial", r.serial},
+          {"taken_at", wire::format_timestamp(r.taken_at)},
+          {"ocv_v", optional_value(r.ocv)},
+          {"cell_sg", std::move(cells)},
+          {"electrolyte_temp_c", temperature_json(r.electrolyte)},
+          {"electrolyte_temp_unit", unit_json(r.electrolyte)},
+          {"ambient_temp_c", temperature_json(r.ambient)},
+          {"ambient_temp_unit", unit_json(r.ambient)},
+          {"rest_h", optional_value(r.rest)},
+          {"load_test_a", optional_value(r.load_test_current)},
+          {"load_test_end_v", optional_value(r.load_test_end)},
+          {"logged_by", r.logged_by},
+          {"source", r.source},
+          {"note", r.note},
+          {"after_charge", r.after_charge},
+          {"water_added", r.water_added}};
+}
+
+json reading_json(const storage::StoredReading& r) {
+  json j = reading_json(static_cast<const wire::ReadingInput&>(r));
+  j["received_at"] = wire::format_timestamp(r.received_at);
+  return j;
+}
+
+json derived_json(const analytics::DerivedReading& d) {
+  json flags = json::array();
+  for (auto word : d.flags.words()) flags.push_back(word);
+  return {{"electrolyte_c", d.electrolyte_c},
+          {"corrected_sg", optional_json(d.corrected_sg)},
+          {"corrected_cell_sg", d.corrected_cell_sg},
+          {"soc_from_sg_percent", optional_json(d.soc_from_sg_percent)},
+          {"soc_from_ocv_percent", optional_json(d.soc_from_ocv_percent)},
+          {"ocv_settled", optional_json(d.ocv_settled)},
+          {"soc_percent", optional_json(d.soc_percent)},
+          {"soc_uncertainty_percent", d.soc_uncertainty_percent},
+          {"sg_equivalent", optional_json(d.sg_equivalent)},
+          {"freezing_point_c", optional_json(d.freezing_point_c)},
+          {"cell_spread", optional_json(d.cell_spread)},
+          {"weak_cell", optional_json(d.weak_cell)},
+          {"load_test_min_v", optional_json(d.load_test_min_v)},
+          {"trusted", d.trusted},
+          {"flags", std::move(flags)}};
+}
+
+}  // namespace pbfleet::api

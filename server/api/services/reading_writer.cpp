@@ -1,0 +1,76 @@
+#include "server/api/services/reading_writer.hpp"
+
+#include <exception>
+#include <utility>
+
+namespace pbfleet::api {
+
+ReadingWriter::ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options)
+    : store_(store), clock_(clock), options_(options), thread_([this] { run(); }) {}
+
+ReadingWriter::~ReadingWriter() {
+  {
+    std::lock_guard lock(mutex_);
+    stopping_ = true;
+  }
+  wake_.notify_one();
+  thread_.join();
+}
+
+bool ReadingWriter::submit(Batch batch, Done done) {
+  {
+    std::lock_guard lock(mutex_);
+    if (stopping_ || pending_.size() >= options_.max_pending) return false;
+    pending_.push_back(Pending{std::move(batch), std::move(done)});
+  }
+  wake_.notify_one();
+  return true;
+}
+
+std::size_t ReadingWriter::commits() const {
+  std::lock_guard lock(mutex_);
+  return commits_;
+}
+
+void ReadingWriter::run() {
+  std::vector<Pending> group;
+  for (;;) {
+    {
+      std::unique_lock lock(mutex_);
+      wake_.wait(lock, [this] { return stopping_ || !pending_.empty(); });
+      if (pending_.empty()) return;  // stopping and drained
+      while (!pending_.empty() && group.size() < options_.max_batches_per_commit) {
+        group.push_back(std::move(pending_.front()));
+        pending_.pop_front();
+      }
+    }
+    commit(group);
+    group.clear();
+  }
+}
+
+void ReadingWriter::commit(std::vector<Pending>& group) {
+  std::vector<Batch> batches;
+  batches.reserve(group.size());
+  for (auto& p : group) batches.push_back(std::move(p.batch));
+  storage::StoreResult<std::vector<storage::AppendOutcome>> result =
+      storage::StoreError{storage::StoreErrc::internal, "reading writer failed", ""};
+  try {
+    result = store_.append_reading_batches(batches, clock_.now());
+  } catch (const std::exception& e) {
+    result = storage::StoreError{storage::StoreErrc::internal, e.what(), ""};
+  }
+  {
+    std::lock_guard lock(mutex_);
+    ++commits_;
+  }
+  for (std::size_t i = 0; i < group.size(); ++i) {
+    if (!result) {
+      group[i].done(result.error());
+    } else {
+      group[i].done(std::move(result.value()[i]));
+    }
+  }
+}
+
+}  // namespace pbfleet::api

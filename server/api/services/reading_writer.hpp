@@ -1,0 +1,67 @@
+// Group commit for readings: one writer thread gathers the batches of
+// concurrent requests and stores them together in one transaction
+// (Store::append_reading_batches), then acknowledges each after COMMIT.
+//
+// With synchronous=FULL every commit costs an fsync; sharing it among the
+// requests that arrived meanwhile keeps single-reading POSTs fast without
+// weakening durability: no request is answered before its COMMIT returns.
+#pragma once
+
+#include <condition_variable>
+#include <cstddef>
+#include <deque>
+#include <functional>
+#include <mutex>
+#include <thread>
+#include <vector>
+
+#include "server/api/clock.hpp"
+#include "server/storage/store.hpp"
+
+namespace pbfleet::api {
+
+struct WriterOptions {
+  // Batches stored in one transaction at most; bounds one commit's latency.
+  std::size_t max_batches_per_commit = 1024;
+  // Batches waiting at most; beyond it submit() refuses (the caller answers 503).
+  std::size_t max_pending = 16 * 1024;
+};
+
+class ReadingWriter {
+ public:
+  using Batch = std::vector<models::wire::ReadingInput>;
+  // Called once, on the writer thread, after the transaction ended.
+  using Done = std::function<void(storage::StoreResult<storage::AppendOutcome>)>;
+
+  ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options = {});
+  // Stores what is pending, then stops the thread.
+  ~ReadingWriter();
+  ReadingWriter(const ReadingWriter&) = delete;
+  ReadingWriter& operator=(const ReadingWriter&) = delete;
+
+  // Queues a batch. False (and `done` not called) when the queue is full
+  // or the writer stopped. REQUIRES: each reading passed validate_reading.
+  bool submit(Batch batch, Done done);
+  // Commits done so far (for benchmarks and metrics).
+  [[nodiscard]] std::size_t commits() const;
+
+ private:
+  struct Pending {
+    Batch batch;
+    Done done;
+  };
+  void run();
+  void commit(std::vector<Pending>& group);
+
+  storage::Store& store_;
+  const Clock& clock_;
+  WriterOptions options_;
+  mutable std::mutex mutex_;
+  std::condition_variable wake_;
+  std::deque<Pending> pending_;
+  bool stopping_ = false;
+  std::size_t commits_ = 0;
+  std::thread thread_;  // last: starts after the members above exist
+};
+
+}  // namespace pbfleet::api

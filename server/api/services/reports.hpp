@@ -1,0 +1,40 @@
+// Report use cases: read what each report needs from the store (never whole
+// histories for the winter report), build battery contexts, run the
+// analytics.
+//
+// Look-back per battery: winter takes the last kWinterLookback readings (the
+// report searches them for the latest trusted one); sulfation and
+// replacement take the last kTrendLookback (five years of weekly rounds);
+// overdue takes only the latest.
+#pragma once
+
+#include <optional>
+#include <vector>
+
+#include "models/analytics/overdue.hpp"
+#include "models/analytics/replacement.hpp"
+#include "models/analytics/sulfation.hpp"
+#include "models/analytics/winter.hpp"
+#include "server/storage/store.hpp"
+
+namespace pbfleet::api {
+
+inline constexpr std::size_t kWinterLookback = 13;      // a quarter of weekly rounds
+inline constexpr std::size_t kTrendLookback = 5 * 52;   // five years of weekly rounds
+
+storage::StoreResult<analytics::WinterReport> build_winter_report(
+    storage::Store& store, std::optional<storage::Id> depot, const analytics::ColdSpec& cold,
+    std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings);
+
+storage::StoreResult<std::vector<analytics::SulfationAssessment>> build_sulfation_report(
+    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
+    const analytics::AnalyticsSettings& settings);
+
+storage::StoreResult<std::vector<analytics::ReplacementForecast>> build_replacement_report(
+    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
+    const analytics::AnalyticsSettings& settings);
+
+storage::StoreResult<std::vector<analytics::DepotOverdue>> build_overdue_report(
+    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now, int days);
+
+}  // namespace pbfleet::api
