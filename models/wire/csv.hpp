@@ -104,7 +104,9 @@ std::string csv_column_for_field(std::string_view field);
 // it was entered in ("-25C", "41F"). Fahrenheit is written as the shortest
 // decimal that reads back to the very same Celsius value, which exists for
 // every value parsed from a Fahrenheit entry; any other Celsius value comes
-// back within 1e-12 C.
+// back within 1e-12 C. REQUIRES: values as parse_reading_csv or the JSON
+// decoder produce them (finite; temperatures within parse_temperature's
+// band), else a cell may not read back.
 std::string format_reading_csv(const std::vector<ReadingInput>& readings);
 
 }  // namespace pbfleet::models::wire
