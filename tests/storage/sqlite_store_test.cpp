@@ -133,9 +133,48 @@ TEST_CASE("readers and a writer work concurrently without busy errors") {
   CHECK(f.store->readings_count().value() == 200);
 }
 
-TEST_CASE("ping answers while the database file is usable") {
+TEST_CASE("ping answers while the database file is usable and fails once it is gone") {
   Fleet f;
   CHECK(f.store->ping().ok());
+  std::filesystem::rename(f.dir.file("fleet.db"), f.dir.file("moved.db"));
+  const auto gone = f.store->ping();
+  REQUIRE_FALSE(gone.ok());
+  CHECK(gone.error().code == StoreErrc::unavailable);
+  std::filesystem::rename(f.dir.file("moved.db"), f.dir.file("fleet.db"));
+  CHECK(f.store->ping().ok());
+}
+
+TEST_CASE("a read-only store serves reads and refuses writes as unavailable") {
+  Fleet f;
+  REQUIRE(f.store->append_readings({reading("ro-1", "NY-0001", 1)}, at(2)).ok());
+  SqliteOptions options;
+  options.file = f.dir.file("fleet.db");
+  options.read_only = true;
+  auto ro = std::move(open_sqlite_store(options)).value();
+  CHECK(ro->readings_count().value() == 1);
+  CHECK(ro->get_battery("NY-0001").ok());
+  const auto refused = ro->append_readings({reading("ro-2", "NY-0001", 2)}, at(3));
+  REQUIRE_FALSE(refused.ok());
+  CHECK(refused.error().code == StoreErrc::unavailable);
+  CHECK(f.store->readings_count().value() == 1);
+}
+
+TEST_CASE("more concurrent readers than pooled connections wait their turn and all succeed") {
+  TempDir dir;
+  SqliteOptions options;
+  options.file = dir.file("pool.db");
+  options.max_readers = 1;
+  auto store = std::move(open_sqlite_store(options)).value();
+  REQUIRE(store->create_depot({0, "Valley", "Europe/Oslo", models::Celsius{-18}}).ok());
+  std::atomic<int> ok{0};
+  std::vector<std::thread> threads;
+  for (int t = 0; t < 4; ++t) {
+    threads.emplace_back([&] {
+      for (int i = 0; i < 50; ++i) ok += store->list_depots({}).ok() ? 1 : 0;
+    });
+  }
+  for (auto& t : threads) t.join();
+  CHECK(ok == 200);
 }
 
 TEST_CASE("an acknowledged batch survives the process being killed right after") {
