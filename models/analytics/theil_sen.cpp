@@ -71,12 +71,15 @@ std::optional<TrendFit> theil_sen(std::span<const double> x, std::span<const dou
   fit.centre_x = median(std::vector<double>(x.begin(), x.end()));
   fit.intercept = median(std::vector<double>(y.begin(), y.end())) - fit.slope * fit.centre_x;
   fit.same_sign_fraction = same_sign_share(slopes, fit.slope);
-  // Gilbert 1987, section 16.5 (from memory): C = z(1 - alpha/2) sqrt(Var S),
-  // Var S = n(n-1)(2n+5)/18; limits at ranks (N - C)/2 and (N + C)/2 + 1.
+  // Rank interval (Sen 1968; Hollander & Wolfe, Nonparametric Statistical
+  // Methods, 2nd ed. 1999): C = z(1 - alpha/2) sqrt(Var S) with
+  // Var S = k (2n + 5) / 9, k the pairs with distinct x (= n(n-1)(2n+5)/18
+  // when no x is tied); limits at the ranks floor((k - C)/2) and
+  // ceil((k + C)/2 + 1), clamped to 1..k (conservative: never narrower).
   const double n = fit.points;
-  const double c = normal_quantile(0.5 + 0.5 * confidence) * std::sqrt(n * (n - 1.0) * (2.0 * n + 5.0) / 18.0);
-  fit.slope_low = at_rank(slopes, (count - c) / 2.0);
-  fit.slope_high = at_rank(slopes, (count + c) / 2.0 + 1.0);
+  const double c = normal_quantile(0.5 + 0.5 * confidence) * std::sqrt(count * (2.0 * n + 5.0) / 9.0);
+  fit.slope_low = at_rank(slopes, std::floor((count - c) / 2.0));
+  fit.slope_high = at_rank(slopes, std::ceil((count + c) / 2.0 + 1.0));
   return fit;
 }
 

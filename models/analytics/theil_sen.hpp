@@ -3,9 +3,9 @@
 // Slope = median of the slopes of all pairs of points with distinct x
 // (Theil 1950; Sen, "Estimates of the regression coefficient based on
 // Kendall's tau", JASA 63 (1968) 1379). Its confidence interval is the
-// rank-based one of Sen 1968 as given in Gilbert, "Statistical Methods for
-// Environmental Pollution Monitoring" (1987), section 16.5 (from memory), using the
-// variance of Kendall's S without tie correction.
+// distribution-free rank interval of Sen 1968 in the form given by Hollander
+// & Wolfe, "Nonparametric Statistical Methods" (2nd ed., 1999), with the
+// normal approximation to Kendall's S and whole ranks (conservative).
 #pragma once
 
 #include <optional>

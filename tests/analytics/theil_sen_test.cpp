@@ -21,13 +21,28 @@ TEST_CASE("Theil-Sen slope is the median of the pairwise slopes on a hand-checka
   CHECK(fit->intercept == doctest::Approx(1.375));
   // 8 of the 10 pairwise slopes are positive, like the median.
   CHECK(fit->same_sign_fraction == doctest::Approx(0.8));
-  // Rank interval (Gilbert 1987, section 16.5, from memory): Var S =
-  // 5*4*15/18 = 16.67, C = 1.645 * 4.082 = 6.715; ranks (10 - 6.715)/2 = 1.64
-  // -> -1 and (10 + 6.715)/2 + 1 = 9.36 -> 2 + 0.36 * (3 - 2), hand-computed.
+  // Rank interval, hand-computed: k = 10 pairs, Var S = 10 * 15 / 9 = 16.67,
+  // C = 1.645 * 4.082 = 6.715; ranks floor((10 - 6.715)/2) = 1 -> -1 and
+  // ceil((10 + 6.715)/2 + 1) = 10 -> 3.
   CHECK(fit->slope_low == doctest::Approx(-1.0));
-  CHECK(fit->slope_high == doctest::Approx(2.358).epsilon(0.002));
+  CHECK(fit->slope_high == doctest::Approx(3.0));
   CHECK_FALSE(fit->significant_fall());
   CHECK_FALSE(fit->significant_rise());
+}
+
+TEST_CASE("Theil-Sen slope and 95 % interval match a published example with tied x") {
+  // Example of the R package statpsych, ci.theil (method of Hollander &
+  // Wolfe, Nonparametric Statistical Methods, 2nd ed., 1999): 15 points,
+  // x tied at 28 (three times) and 40 (twice); documented result:
+  // estimate 0.5, 95 % limits 0.3243243 and 0.75.
+  const std::vector<double> y{21, 4, 9, 12, 35, 18, 10, 22, 24, 1, 6, 8, 13, 16, 19};
+  const std::vector<double> x{67, 28, 30, 28, 52, 40, 25, 37, 44, 10, 14, 20, 28, 40, 51};
+  const auto fit = pa::theil_sen(x, y, 0.95);
+  REQUIRE(fit);
+  CHECK(fit->slope == doctest::Approx(0.5));
+  CHECK(fit->slope_low == doctest::Approx(0.3243243).epsilon(1e-6));
+  CHECK(fit->slope_high == doctest::Approx(0.75));
+  CHECK(fit->significant_rise());
 }
 
 TEST_CASE("one wild point does not move the Theil-Sen slope of an exact line") {
