@@ -1,7 +1,8 @@
 // Winter risk: will each battery crank, and stay unfrozen, at the coming low?
 //
-// For every in-service battery: take its latest trusted reading (settled,
-// no surface charge), project its SOC to the cold date with
+// For every in-service battery: take its latest trusted reading (no surface
+// charge suspected, and a settled OCV or hydrometer readings; see
+// DerivedReading::trusted), project its SOC to the cold date with
 // models::project_soc, then judge the crank margin (models::available_cca vs
 // models::required_current_at) and the freeze margin (models::freeze_margin_c)
 // at the low. Temperature assumption for the self-discharge: daily mean
