@@ -93,6 +93,7 @@ SqliteStore::~SqliteStore() {
 std::unique_ptr<Db> SqliteStore::open_reader() {
   auto db = std::make_unique<Db>(options_.file, Db::Mode::read_only);
   set_busy_timeout(*db, options_.busy_timeout);
+  db->exec("PRAGMA mmap_size = " + std::to_string(options_.reader_mmap_bytes));
   return db;
 }
 

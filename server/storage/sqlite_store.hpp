@@ -33,6 +33,10 @@ struct SqliteOptions {
   // Cap on the database size; 0 = none. A write that would grow the file
   // beyond it fails with disk_full and stores nothing, as on a full disk.
   std::uint64_t max_size_bytes = 0;
+  // Memory-mapped reads on the reader connections (0 = off). Report queries
+  // then touch pages in the shared OS page cache instead of copying each
+  // into a per-connection cache. Writes never use the map (WAL).
+  std::uint64_t reader_mmap_bytes = 256ull << 20;
 };
 
 // Opens (creating if needed) and migrates the database to the schema this
