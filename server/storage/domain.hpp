@@ -39,9 +39,9 @@ std::optional<Role> parse_role(std::string_view text);
 
 struct Depot {
   Id id = 0;
-  std::string name;                  // unique, e.g. "North Yard"
-  std::string time_zone;             // IANA name, e.g. "Europe/Oslo"; for display only
-  models::Celsius design_low_c{0.0}; // design winter low the depot plans for
+  std::string name;                   // unique, e.g. "North Yard"
+  std::string time_zone;              // IANA name, e.g. "Europe/Oslo"; for display only
+  models::Celsius design_low_c{0.0};  // design winter low the depot plans for
 };
 
 struct Vehicle {
@@ -49,8 +49,8 @@ struct Vehicle {
   std::string code;  // unique fleet code, e.g. "TR-104"
   Id depot_id = 0;
   Engine engine = Engine::diesel;
-  std::optional<double> displacement_l;          // litres
-  std::optional<models::Amperes> required_cca_a; // cranking current the engine needs
+  std::optional<double> displacement_l;           // litres
+  std::optional<models::Amperes> required_cca_a;  // cranking current the engine needs
 };
 
 struct Battery {
@@ -59,12 +59,12 @@ struct Battery {
   models::Chemistry chemistry = models::Chemistry::flooded;
   models::Volts nominal_v{12.0};
   int cells = 6;
-  models::Amperes rated_cca_a{0.0};                     // SAE J537 rating
-  std::optional<double> reserve_capacity_min;           // minutes at 25 A
-  std::optional<double> capacity_ah;                    // 20 h rate
-  std::optional<models::SpecificGravity> full_charge_sg;// corrected, the maker's value
+  models::Amperes rated_cca_a{0.0};                       // SAE J537 rating
+  std::optional<double> reserve_capacity_min;             // minutes at 25 A
+  std::optional<double> capacity_ah;                      // 20 h rate
+  std::optional<models::SpecificGravity> full_charge_sg;  // corrected, the maker's value
   std::chrono::sys_days installed_on{};
-  std::optional<Id> vehicle_id;                         // fitted to
+  std::optional<Id> vehicle_id;  // fitted to
   BatteryStatus status = BatteryStatus::in_service;
   std::optional<std::chrono::sys_seconds> retired_at;
   std::string retire_reason;

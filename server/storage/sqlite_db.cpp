@@ -42,9 +42,9 @@ void fail(StoreErrc code, std::string detail, std::string field) {
 // ---- Db ---------------------------------------------------------------------
 
 Db::Db(const std::filesystem::path& file, Mode mode) {
-  const int flags = SQLITE_OPEN_NOMUTEX |
-                    (mode == Mode::read_only ? SQLITE_OPEN_READONLY
-                                             : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
+  const int flags =
+      SQLITE_OPEN_NOMUTEX |
+      (mode == Mode::read_only ? SQLITE_OPEN_READONLY : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
   const int rc = sqlite3_open_v2(file.c_str(), &db_, flags, nullptr);
   if (rc != SQLITE_OK) {
     std::string detail = "cannot open database " + file.string() + ": " +
@@ -71,8 +71,8 @@ void Db::exec(std::string_view sql) {
 
 Statement Db::prepare(std::string_view sql) {
   sqlite3_stmt* stmt = nullptr;
-  check(sqlite3_prepare_v3(db_, sql.data(), static_cast<int>(sql.size()),
-                           SQLITE_PREPARE_PERSISTENT, &stmt, nullptr),
+  check(sqlite3_prepare_v3(db_, sql.data(), static_cast<int>(sql.size()), SQLITE_PREPARE_PERSISTENT,
+                           &stmt, nullptr),
         "prepare");
   return Statement(*this, stmt);
 }
@@ -109,9 +109,9 @@ Statement& Statement::bind(int index, double value) {
   return *this;
 }
 Statement& Statement::bind(int index, std::string_view text) {
-  db_->check(sqlite3_bind_text64(stmt_, index, text.data(), text.size(), SQLITE_TRANSIENT,
-                                 SQLITE_UTF8),
-             "bind");
+  db_->check(
+      sqlite3_bind_text64(stmt_, index, text.data(), text.size(), SQLITE_TRANSIENT, SQLITE_UTF8),
+      "bind");
   return *this;
 }
 Statement& Statement::bind_blob(int index, const void* data, std::size_t size) {
@@ -173,7 +173,8 @@ Transaction::Transaction(Db& db) : db_(db) { db_.exec("BEGIN IMMEDIATE"); }
 Transaction::~Transaction() {
   // SQLite may already have rolled back (e.g. after SQLITE_FULL); then
   // ROLLBACK fails harmlessly.
-  if (!done_ && db_.in_transaction()) sqlite3_exec(db_.handle(), "ROLLBACK", nullptr, nullptr, nullptr);
+  if (!done_ && db_.in_transaction())
+    sqlite3_exec(db_.handle(), "ROLLBACK", nullptr, nullptr, nullptr);
 }
 
 void Transaction::commit() {

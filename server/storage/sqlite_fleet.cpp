@@ -140,8 +140,8 @@ StoreResult<Page<Depot>> SqliteStore::list_depots(const PageRequest& page) {
 StoreResult<Depot> SqliteStore::update_depot(const Depot& d) {
   return write([&](Db& db) {
     depot_by_id(db, d.id);
-    auto s = db.prepare(
-        "UPDATE depots SET name = ?2, time_zone = ?3, design_low_c = ?4 WHERE id = ?1");
+    auto s =
+        db.prepare("UPDATE depots SET name = ?2, time_zone = ?3, design_low_c = ?4 WHERE id = ?1");
     s.bind(1, d.id).bind(2, d.name).bind(3, d.time_zone).bind(4, d.design_low_c.value);
     run_unique(s, "name", "a depot named '" + d.name + "' already exists");
     return depot_by_id(db, d.id);
@@ -282,10 +282,10 @@ StoreResult<std::vector<BatteryEvent>> SqliteStore::battery_events(std::string_v
     s.bind(1, b.id);
     std::vector<BatteryEvent> events;
     while (s.step()) {
-      events.push_back(BatteryEvent{s.int_at(0), s.int_at(1), seconds_from_db(s.int_at(2)),
-                                    s.text_at(3) == "retired" ? EventKind::retired
-                                                              : EventKind::fitted,
-                                    s.opt_int_at(4), s.text_at(5)});
+      events.push_back(
+          BatteryEvent{s.int_at(0), s.int_at(1), seconds_from_db(s.int_at(2)),
+                       s.text_at(3) == "retired" ? EventKind::retired : EventKind::fitted,
+                       s.opt_int_at(4), s.text_at(5)});
     }
     return events;
   });

@@ -11,16 +11,15 @@ constexpr const char* kCreateVersionTable =
 
 bool version_table_exists(Db& db) {
   return db.query_int(
-             "SELECT count(*) FROM sqlite_schema WHERE type = 'table' AND name = 'schema_version'") >
-         0;
+             "SELECT count(*) FROM sqlite_schema WHERE type = 'table' AND name = "
+             "'schema_version'") > 0;
 }
 
 void refuse_if_newer(int found, int known) {
   if (found <= known) return;
-  fail(StoreErrc::invalid,
-       "database schema version " + std::to_string(found) + " is newer than this pbfleetd knows (" +
-           std::to_string(known) +
-           "); upgrade pbfleetd or restore a backup made by this version");
+  fail(StoreErrc::invalid, "database schema version " + std::to_string(found) +
+                               " is newer than this pbfleetd knows (" + std::to_string(known) +
+                               "); upgrade pbfleetd or restore a backup made by this version");
 }
 
 // One migration and its record, atomically. Re-checks the version inside

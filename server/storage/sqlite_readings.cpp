@@ -19,7 +19,8 @@ constexpr std::string_view kInsertReading =
     "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
     " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h, load_test_a,"
     " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash)"
-    " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19)";
+    " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, "
+    "?19)";
 
 // A reading id for a reading the client sent without one: 96 random bits.
 std::string assigned_reading_id() {
@@ -39,7 +40,8 @@ std::optional<double> raw(const std::optional<Q>& q) {
   return q ? std::optional<double>(q->value) : std::nullopt;
 }
 
-void bind_temperature(Statement& s, int index, const std::optional<models::wire::EnteredTemperature>& t) {
+void bind_temperature(Statement& s, int index,
+                      const std::optional<models::wire::EnteredTemperature>& t) {
   if (!t) return;
   s.bind(index, t->value.value).bind(index + 1, t->unit == models::wire::TempUnit::f ? "F" : "C");
 }
@@ -136,8 +138,8 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
     ReadingInput input = batch[row];
     const auto battery_id = st.battery_id(input.serial);
     if (!battery_id) {
-      out.problems.push_back({row, StoreErrc::not_found, "serial",
-                              "no battery with serial '" + input.serial + "'"});
+      out.problems.push_back(
+          {row, StoreErrc::not_found, "serial", "no battery with serial '" + input.serial + "'"});
       continue;
     }
     const ContentHash hash = content_hash(input);
@@ -177,14 +179,15 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
     out.replayed.clear();
     return out;
   }
-  out.replayed_count = static_cast<std::size_t>(std::count(out.replayed.begin(), out.replayed.end(), true));
+  out.replayed_count =
+      static_cast<std::size_t>(std::count(out.replayed.begin(), out.replayed.end(), true));
   out.stored = out.readings.size() - out.replayed_count;
   return out;
 }
 
 // Batch append guarded by a savepoint: a refused batch leaves no trace.
-AppendOutcome append_isolated(Db& db, ReadingStatements& st,
-                              const std::vector<ReadingInput>& batch, sys_seconds now) {
+AppendOutcome append_isolated(Db& db, ReadingStatements& st, const std::vector<ReadingInput>& batch,
+                              sys_seconds now) {
   Savepoint sp(db);
   AppendOutcome out = append_batch(db, st, batch, now);
   out.accepted() ? sp.release() : sp.rollback();
@@ -248,8 +251,9 @@ StoreResult<std::size_t> SqliteStore::load_readings(const std::vector<ReadingInp
   });
 }
 
-StoreResult<std::vector<StoredReading>> SqliteStore::readings_for(
-    std::string_view serial, std::optional<sys_seconds> from, std::optional<sys_seconds> to) {
+StoreResult<std::vector<StoredReading>> SqliteStore::readings_for(std::string_view serial,
+                                                                  std::optional<sys_seconds> from,
+                                                                  std::optional<sys_seconds> to) {
   return read([&](Db& db) {
     const Battery b = battery_by_serial(db, serial);
     auto s = db.prepare(std::string(kReadingSelect) +
@@ -265,8 +269,8 @@ StoreResult<Page<StoredReading>> SqliteStore::list_readings(const ReadingFilter&
   return read([&](Db& db) {
     const std::int64_t limit = page_limit(page);
     const Id after = page_after(page);
-    std::string sql = std::string(kReadingSelect) +
-                      " WHERE r.id > ?1 AND r.taken_at BETWEEN ?2 AND ?3";
+    std::string sql =
+        std::string(kReadingSelect) + " WHERE r.id > ?1 AND r.taken_at BETWEEN ?2 AND ?3";
     std::optional<Id> battery;
     if (f.serial) {
       battery = battery_by_serial(db, *f.serial).id;
@@ -318,9 +322,8 @@ StoreResult<std::vector<BatteryReadings>> SqliteStore::latest_settled(const Batt
 }
 
 StoreResult<std::int64_t> SqliteStore::readings_count() {
-  return read([](Db& db) {
-    return db.query_int("SELECT value FROM counters WHERE name = 'readings'");
-  });
+  return read(
+      [](Db& db) { return db.query_int("SELECT value FROM counters WHERE name = 'readings'"); });
 }
 
 }  // namespace pbfleet::storage::sqlite

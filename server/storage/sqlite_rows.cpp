@@ -125,7 +125,8 @@ ApiToken read_token(const Statement& s) {
   t.created_at = seconds_from_db(s.int_at(4));
   if (auto at = s.opt_int_at(5)) t.revoked_at = seconds_from_db(*at);
   const auto hash = s.blob_at(6);
-  if (hash.size() == t.hash.bytes.size()) std::memcpy(t.hash.bytes.data(), hash.data(), hash.size());
+  if (hash.size() == t.hash.bytes.size())
+    std::memcpy(t.hash.bytes.data(), hash.data(), hash.size());
   return t;
 }
 

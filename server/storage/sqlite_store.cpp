@@ -60,10 +60,10 @@ SqliteStore::SqliteStore(SqliteOptions options) : options_(std::move(options)) {
   if (options_.read_only) {
     Lease probe = lease_reader();
     if (schema_version(probe.db()) != known_schema_version()) {
-      fail(StoreErrc::invalid, "database schema version " +
-                                   std::to_string(schema_version(probe.db())) +
-                                   " differs from this binary's " +
-                                   std::to_string(known_schema_version()) + "; open it read-write once");
+      fail(StoreErrc::invalid,
+           "database schema version " + std::to_string(schema_version(probe.db())) +
+               " differs from this binary's " + std::to_string(known_schema_version()) +
+               "; open it read-write once");
     }
     return;
   }
@@ -99,9 +99,8 @@ std::unique_ptr<Db> SqliteStore::open_reader() {
 
 SqliteStore::Lease SqliteStore::lease_reader() {
   std::unique_lock lock(pool_mutex_);
-  pool_free_.wait(lock, [&] {
-    return !idle_readers_.empty() || open_readers_ < options_.max_readers;
-  });
+  pool_free_.wait(lock,
+                  [&] { return !idle_readers_.empty() || open_readers_ < options_.max_readers; });
   if (!idle_readers_.empty()) {
     auto db = std::move(idle_readers_.back());
     idle_readers_.pop_back();

@@ -26,10 +26,10 @@
 namespace pbfleet::storage {
 
 struct SqliteOptions {
-  std::filesystem::path file;                // the database file; created if missing
+  std::filesystem::path file;  // the database file; created if missing
   std::chrono::milliseconds busy_timeout{5000};
   std::size_t max_readers = 8;
-  bool read_only = false;                    // open for reads only (no migration)
+  bool read_only = false;  // open for reads only (no migration)
   // Cap on the database size; 0 = none. A write that would grow the file
   // beyond it fails with disk_full and stores nothing, as on a full disk.
   std::uint64_t max_size_bytes = 0;

@@ -47,8 +47,8 @@ struct StoreError {
 template <class T>
 class StoreResult {
  public:
-  StoreResult(T value) : v_(std::move(value)) {}          // NOLINT: implicit by design
-  StoreResult(StoreError error) : v_(std::move(error)) {} // NOLINT: implicit by design
+  StoreResult(T value) : v_(std::move(value)) {}           // NOLINT: implicit by design
+  StoreResult(StoreError error) : v_(std::move(error)) {}  // NOLINT: implicit by design
 
   [[nodiscard]] bool ok() const { return v_.index() == 0; }
   explicit operator bool() const { return ok(); }
@@ -135,8 +135,8 @@ struct BatteryReadings {
 // ---- operations -------------------------------------------------------------
 
 struct DurabilitySettings {
-  std::string journal_mode;    // "wal"
-  int synchronous = 0;         // 2 = FULL
+  std::string journal_mode;  // "wal"
+  int synchronous = 0;       // 2 = FULL
   bool foreign_keys = false;
   int busy_timeout_ms = 0;
   int schema_version = 0;

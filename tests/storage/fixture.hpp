@@ -21,7 +21,8 @@ using namespace std::chrono_literals;
 class TempDir {
  public:
   TempDir() {
-    std::string pattern = (std::filesystem::temp_directory_path() / "pbfleet-storage-XXXXXX").string();
+    std::string pattern =
+        (std::filesystem::temp_directory_path() / "pbfleet-storage-XXXXXX").string();
     REQUIRE(::mkdtemp(pattern.data()) != nullptr);
     path_ = pattern;
   }
@@ -64,8 +65,8 @@ struct Fleet {
 
   Fleet() {
     depot = store->create_depot({0, "North Yard", "Europe/Oslo", models::Celsius{-25}}).value();
-    vehicle = store->create_vehicle({0, "TR-104", depot.id, Engine::diesel, 7.7, std::nullopt})
-                  .value();
+    vehicle =
+        store->create_vehicle({0, "TR-104", depot.id, Engine::diesel, 7.7, std::nullopt}).value();
     battery = store->create_battery(make_battery("NY-0001", vehicle.id), at(0)).value();
   }
 

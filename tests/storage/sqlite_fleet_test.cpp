@@ -184,9 +184,10 @@ TEST_CASE("keyset pages list every existing object exactly once while others are
   Fleet f;
   std::set<Id> before{f.depot.id};
   for (int i = 0; i < 24; ++i) {
-    before.insert(f.store->create_depot({0, "Depot " + std::to_string(i), "UTC", models::Celsius{0}})
-                      .value()
-                      .id);
+    before.insert(
+        f.store->create_depot({0, "Depot " + std::to_string(i), "UTC", models::Celsius{0}})
+            .value()
+            .id);
   }
   std::multiset<Id> seen;
   PageRequest page{10, ""};
@@ -213,7 +214,7 @@ TEST_CASE("page limits are clamped and a bad cursor is refused") {
   for (int i = 0; i < 3; ++i) {
     REQUIRE(f.store->create_depot({0, "D" + std::to_string(i), "UTC", models::Celsius{0}}).ok());
   }
-  CHECK(f.store->list_depots({0, ""}).value().items.size() == 1);      // 0 -> 1
+  CHECK(f.store->list_depots({0, ""}).value().items.size() == 1);  // 0 -> 1
   const auto bad = f.store->list_depots({10, "not-a-cursor"});
   REQUIRE_FALSE(bad.ok());
   CHECK(bad.error().code == StoreErrc::invalid);

@@ -106,7 +106,8 @@ TEST_CASE("a migration killed mid-way leaves the old version and runs again on t
     db.exec("PRAGMA journal_mode = WAL");
     migrate(db, embedded_migrations(), kNow);
   }
-  const std::string_view sql = "CREATE TABLE added_later (x INTEGER); CREATE INDEX a ON added_later (x);";
+  const std::string_view sql =
+      "CREATE TABLE added_later (x INTEGER); CREATE INDEX a ON added_later (x);";
   const pid_t child = ::fork();
   REQUIRE(child >= 0);
   if (child == 0) {

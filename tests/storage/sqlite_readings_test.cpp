@@ -19,7 +19,8 @@ using testing::reading;
 
 std::vector<ReadingInput> week_round(const std::string& prefix, int count, int day = 1) {
   std::vector<ReadingInput> batch;
-  for (int i = 0; i < count; ++i) batch.push_back(reading(prefix + std::to_string(i), "NY-0001", day + i));
+  for (int i = 0; i < count; ++i)
+    batch.push_back(reading(prefix + std::to_string(i), "NY-0001", day + i));
   return batch;
 }
 
@@ -134,7 +135,8 @@ TEST_CASE("the same reading id with other content is a conflict naming the id; n
   REQUIRE(f.store->append_readings({reading("dup", "NY-0001", 1)}, at(2))->accepted());
   auto changed = reading("dup", "NY-0001", 1);
   changed.ocv = models::Volts{12.40};
-  const auto out = f.store->append_readings({reading("fresh", "NY-0001", 2), changed}, at(3)).value();
+  const auto out =
+      f.store->append_readings({reading("fresh", "NY-0001", 2), changed}, at(3)).value();
   CHECK_FALSE(out.accepted());
   REQUIRE(out.problems.size() == 1);
   CHECK(out.problems[0].row == 1);
@@ -147,15 +149,17 @@ TEST_CASE("the same reading id with other content is a conflict naming the id; n
 
 TEST_CASE("a reading id repeated inside one batch is one reading, or a conflict if it differs") {
   Fleet f;
-  const auto twice = f.store->append_readings({reading("x", "NY-0001", 1), reading("x", "NY-0001", 1)},
-                                              at(2)).value();
+  const auto twice =
+      f.store->append_readings({reading("x", "NY-0001", 1), reading("x", "NY-0001", 1)}, at(2))
+          .value();
   REQUIRE(twice.accepted());
   CHECK(twice.stored == 1);
   CHECK(twice.replayed == std::vector<bool>{false, true});
   CHECK(twice.readings[0].id == twice.readings[1].id);
 
-  const auto differs = f.store->append_readings({reading("y", "NY-0001", 1), reading("y", "NY-0001", 2)},
-                                                at(2)).value();
+  const auto differs =
+      f.store->append_readings({reading("y", "NY-0001", 1), reading("y", "NY-0001", 2)}, at(2))
+          .value();
   CHECK_FALSE(differs.accepted());
   CHECK(differs.problems.at(0).row == 1);
   CHECK(f.store->readings_count().value() == 1);
@@ -176,10 +180,9 @@ TEST_CASE("group commit accepts and refuses each batch on its own in one transac
   REQUIRE(f.store->append_readings({reading("seen", "NY-0001", 1)}, at(1))->accepted());
   auto bad = week_round("g2-", 2);
   bad[1].serial = "GHOST";
-  const auto outcomes =
-      f.store->append_reading_batches({week_round("g1-", 3), bad, {reading("seen", "NY-0001", 1)},
-                                       week_round("g4-", 2, 10)},
-                                      at(20));
+  const auto outcomes = f.store->append_reading_batches(
+      {week_round("g1-", 3), bad, {reading("seen", "NY-0001", 1)}, week_round("g4-", 2, 10)},
+      at(20));
   REQUIRE(outcomes.ok());
   REQUIRE(outcomes->size() == 4);
   CHECK((*outcomes)[0].stored == 3);
@@ -211,8 +214,8 @@ TEST_CASE("the bulk loader stores a batch in one go and refuses duplicates whole
 TEST_CASE("history is one battery's readings in time order within the range") {
   Fleet f;
   REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
-  auto batch = week_round("h-", 6);            // days 1..6
-  std::reverse(batch.begin(), batch.end());    // logged out of order
+  auto batch = week_round("h-", 6);          // days 1..6
+  std::reverse(batch.begin(), batch.end());  // logged out of order
   batch.push_back(reading("other", "NY-0002", 3));
   REQUIRE(f.store->append_readings(batch, at(10))->accepted());
 
@@ -279,8 +282,9 @@ TEST_CASE("reading pages cover every stored reading once while new ones arrive")
   for (;;) {
     const auto got = f.store->list_readings({"NY-0001", {}, {}}, page).value();
     for (const auto& r : got.items) CHECK(seen.insert(r.reading_id).second);
-    REQUIRE(f.store->append_readings({reading("late-" + std::to_string(extra++), "NY-0001", 2)},
-                                     at(2))->accepted());
+    REQUIRE(
+        f.store->append_readings({reading("late-" + std::to_string(extra++), "NY-0001", 2)}, at(2))
+            ->accepted());
     if (got.next_cursor.empty()) break;
     page.cursor = got.next_cursor;
   }

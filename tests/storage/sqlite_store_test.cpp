@@ -35,9 +35,9 @@ TEST_CASE("the store runs with WAL, synchronous FULL, foreign keys and a busy ti
 
 TEST_CASE("a backup is a consistent copy that passes integrity_check and opens as a store") {
   Fleet f;
-  REQUIRE(f.store->append_readings({reading("b1", "NY-0001", 1), reading("b2", "NY-0001", 8)},
-                                   at(9))
-              .ok());
+  REQUIRE(
+      f.store->append_readings({reading("b1", "NY-0001", 1), reading("b2", "NY-0001", 8)}, at(9))
+          .ok());
   const auto target = f.dir.file("backup.db");
   const auto report = f.store->backup_to(target);
   REQUIRE_MESSAGE(report.ok(), (report.ok() ? "" : report.error().detail));

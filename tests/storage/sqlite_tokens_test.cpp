@@ -25,7 +25,8 @@ std::string file_bytes(const std::filesystem::path& path) {
 TEST_CASE("a token is found by its hash with its role and scope") {
   Fleet f;
   const std::string raw = new_raw_token();
-  const auto made = f.store->create_token("crew tablet 1", Role::crew, f.depot.id, hash_token(raw), at(1));
+  const auto made =
+      f.store->create_token("crew tablet 1", Role::crew, f.depot.id, hash_token(raw), at(1));
   REQUIRE(made.ok());
   const auto found = f.store->find_token(hash_token(raw));
   REQUIRE(found.ok());
@@ -72,8 +73,10 @@ TEST_CASE("a token scoped to an unknown depot is refused") {
 TEST_CASE("tokens list in pages") {
   Fleet f;
   for (int i = 0; i < 5; ++i) {
-    REQUIRE(f.store->create_token("t" + std::to_string(i), Role::technician, std::nullopt,
-                                  hash_token(new_raw_token()), at(1)).ok());
+    REQUIRE(f.store
+                ->create_token("t" + std::to_string(i), Role::technician, std::nullopt,
+                               hash_token(new_raw_token()), at(1))
+                .ok());
   }
   const auto first = f.store->list_tokens({3, ""}).value();
   CHECK(first.items.size() == 3);

@@ -57,10 +57,10 @@ T must(StoreResult<T> r, const char* what) {
 }
 
 void create_fleet(Store& store, int batteries) {
-  const Id depot = must(store.create_depot({0, "North Yard", "Europe/Oslo", models::Celsius{-25}}),
-                        "depot").id;
-  const Id vehicle = must(store.create_vehicle({0, "TR-1", depot, Engine::diesel, 7.7, {}}),
-                          "vehicle").id;
+  const Id depot =
+      must(store.create_depot({0, "North Yard", "Europe/Oslo", models::Celsius{-25}}), "depot").id;
+  const Id vehicle =
+      must(store.create_vehicle({0, "TR-1", depot, Engine::diesel, 7.7, {}}), "vehicle").id;
   for (int b = 0; b < batteries; ++b) {
     Battery battery;
     battery.serial = serial_of(b);
@@ -89,8 +89,10 @@ void bulk_load(Store& store, int batteries, int weeks) {
   total += must(store.load_readings(batch, std::chrono::sys_seconds{kEpoch}), "load");
   const double s = seconds_since(start);
   const double c = cpu_seconds() - cpu;
-  std::printf("bulk load: %zu readings in %.2f s = %.0f rows/s (batches of %zu; CPU %.2f s = %.0f rows/CPU-s)\n",
-              total, s, total / s, kBatch, c, total / c);
+  std::printf(
+      "bulk load: %zu readings in %.2f s = %.0f rows/s (batches of %zu; CPU %.2f s = %.0f "
+      "rows/CPU-s)\n",
+      total, s, total / s, kBatch, c, total / c);
 }
 
 void single_appends(Store& store, int count) {
@@ -142,21 +144,20 @@ void timed(const char* what, F&& f) {
 }
 
 void queries(Store& store) {
-  timed("latest reading of every battery (last_readings 1)", [&] {
-    return must(store.last_readings({}, 1), "last").size();
-  });
+  timed("latest reading of every battery (last_readings 1)",
+        [&] { return must(store.last_readings({}, 1), "last").size(); });
   timed("last 13 readings of every battery", [&] {
     std::size_t n = 0;
     for (const auto& b : must(store.last_readings({}, 13), "last13")) n += b.readings.size();
     return n;
   });
-  timed("latest settled (rest >= 6 h) of every battery", [&] {
-    return must(store.latest_settled({}, models::Hours{6}), "settled").size();
-  });
+  timed("latest settled (rest >= 6 h) of every battery",
+        [&] { return must(store.latest_settled({}, models::Hours{6}), "settled").size(); });
   timed("one battery's whole history", [&] {
     return must(store.readings_for(serial_of(7), std::nullopt, std::nullopt), "history").size();
   });
-  timed("readings count", [&] { return static_cast<std::size_t>(must(store.readings_count(), "count")); });
+  timed("readings count",
+        [&] { return static_cast<std::size_t>(must(store.readings_count(), "count")); });
 }
 
 }  // namespace
@@ -164,8 +165,7 @@ void queries(Store& store) {
 int main(int argc, char** argv) {
   const int batteries = argc > 1 ? std::atoi(argv[1]) : 1000;
   const int weeks = argc > 2 ? std::atoi(argv[2]) : 260;
-  std::string pattern =
-      (std::filesystem::temp_directory_path() / "pbfleet-bench-XXXXXX").string();
+  std::string pattern = (std::filesystem::temp_directory_path() / "pbfleet-bench-XXXXXX").string();
   if (::mkdtemp(pattern.data()) == nullptr) return 1;
   const std::filesystem::path dir = pattern;
   {
@@ -182,8 +182,8 @@ int main(int argc, char** argv) {
     const auto count = must(store->readings_count(), "count");
     store.reset();  // checkpoint: the WAL folds into the file
     const auto bytes = std::filesystem::file_size(dir / "bench.db");
-    std::printf("database: %.1f MB, %.0f bytes per reading (all tables and indexes)\n",
-                bytes / 1e6, static_cast<double>(bytes) / count);
+    std::printf("database: %.1f MB, %.0f bytes per reading (all tables and indexes)\n", bytes / 1e6,
+                static_cast<double>(bytes) / count);
   }
   std::filesystem::remove_all(dir);
   return 0;
