@@ -1,0 +1,200 @@
+// Ingest figures: readings per second through POST /v1/readings, one
+// reading per request and in batches of 500 (keep-alive, 2 client threads,
+// loopback), against limits measured in the same run:
+//   single  vs pbfleetd's own GET /healthz rate (the HTTP stack's ceiling);
+//   batched vs a raw SQLite insert of the same rows (one prepared INSERT,
+//           one transaction per 500 rows, the server's schema and pragmas).
+//
+//   bench_ingest --pbfleetd PATH --work DIR [--single N] [--batches M] [--seconds S]
+//
+// N and M bound the requests; S bounds each phase's time (whichever ends
+// first). The server runs on 127.0.0.1 with a temporary database in DIR.
+#include <atomic>
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include "deploy/demogen/generator.hpp"
+#include "server/storage/store.hpp"
+#include "tests/bench/daemon.hpp"
+#include "tests/bench/figure.hpp"
+#include "tests/bench/fleet_db.hpp"
+#include "tests/bench/http_client.hpp"
+#include "tests/bench/raw_sqlite.hpp"
+
+namespace {
+
+using namespace pbfleet;
+using namespace pbfleet::bench;
+namespace fs = std::filesystem;
+using models::wire::ReadingInput;
+
+constexpr int kClientThreads = 2;
+constexpr std::size_t kBatch = 500;
+
+struct Options {
+  fs::path pbfleetd, work;
+  std::size_t single = 100'000;  // single-reading requests at most
+  std::size_t batches = 200;     // batched requests at most
+  double seconds = 3.0;          // per phase at most
+};
+
+Options parse(int argc, char** argv) {
+  Options o;
+  for (int i = 1; i + 1 < argc; i += 2) {
+    const std::string key = argv[i], value = argv[i + 1];
+    if (key == "--pbfleetd") o.pbfleetd = value;
+    else if (key == "--work") o.work = value;
+    else if (key == "--single") o.single = std::stoul(value);
+    else if (key == "--batches") o.batches = std::stoul(value);
+    else if (key == "--seconds") o.seconds = std::stod(value);
+    else { std::fprintf(stderr, "unknown option %s\n", key.c_str()); std::exit(2); }
+  }
+  if (o.pbfleetd.empty() || o.work.empty()) {
+    std::fprintf(stderr, "usage: bench_ingest --pbfleetd PATH --work DIR [--single N] "
+                         "[--batches M] [--seconds S]\n");
+    std::exit(2);
+  }
+  return o;
+}
+
+// A small generated fleet; `readings` gets enough of its readings.
+demogen::Fleet small_fleet(std::size_t wanted, std::vector<ReadingInput>& readings) {
+  demogen::FleetConfig config;
+  config.weeks = 260;
+  config.batteries = static_cast<int>(wanted / 200 + 20);
+  config.last_round = kLastRound;
+  auto fleet = demogen::make_fleet(config);
+  demogen::generate_readings(config, fleet, [&](const auto&, const std::vector<ReadingInput>& r) {
+    readings.insert(readings.end(), r.begin(), r.end());
+  });
+  if (readings.size() < wanted) {
+    std::fprintf(stderr, "generator gave %zu readings, %zu wanted\n", readings.size(), wanted);
+    std::exit(1);
+  }
+  readings.resize(wanted);
+  return fleet;
+}
+
+nlohmann::json reading_json(const ReadingInput& r) {
+  nlohmann::json j{{"reading_id", r.reading_id}, {"serial", r.serial},
+                   {"taken_at", models::wire::format_timestamp(r.taken_at)}};
+  if (r.ocv) j["ocv_v"] = r.ocv->value;
+  auto& cells = j["cell_sg"] = nlohmann::json::array();
+  for (const auto& sg : r.cell_sg) cells.push_back(sg.value);
+  if (r.electrolyte) j["electrolyte_temp_c"] = r.electrolyte->value.value;
+  if (r.ambient) j["ambient_temp_c"] = r.ambient->value.value;
+  if (r.rest) j["rest_h"] = r.rest->value;
+  j["logged_by"] = r.logged_by;
+  j["source"] = r.source;
+  if (!r.note.empty()) j["note"] = r.note;
+  if (r.after_charge) j["after_charge"] = true;
+  if (r.water_added) j["water_added"] = true;
+  return j;
+}
+
+// Request bodies: one reading each, or kBatch readings each.
+std::vector<std::string> bodies(const std::vector<ReadingInput>& r, std::size_t from,
+                                std::size_t count, std::size_t per_body) {
+  std::vector<std::string> out;
+  for (std::size_t i = from; i < from + count; i += per_body) {
+    if (per_body == 1) {
+      out.push_back(reading_json(r[i]).dump());
+      continue;
+    }
+    nlohmann::json list = nlohmann::json::array();
+    for (std::size_t k = i; k < std::min(from + count, i + per_body); ++k) list.push_back(reading_json(r[k]));
+    out.push_back(list.dump());
+  }
+  return out;
+}
+
+// The same request stream from kClientThreads keep-alive connections until
+// `limit` requests were sent or `seconds` passed; returns requests/s.
+// `make(i)` gives the i-th request as {method, target, body}.
+struct Load {
+  std::uint16_t port;
+  std::string token;
+};
+
+template <class Make>
+double drive(const Load& load, std::size_t limit, double seconds, int expect, Make make) {
+  std::atomic<std::size_t> next{0}, done{0};
+  std::atomic<bool> failed{false};
+  const auto start = SteadyClock::now();
+  std::vector<std::thread> threads;
+  for (int t = 0; t < kClientThreads; ++t) {
+    threads.emplace_back([&] {
+      HttpClient client("127.0.0.1", load.port);
+      client.set_token(load.token);
+      for (std::size_t i; (i = next++) < limit && seconds_since(start) < seconds && !failed;) {
+        auto [method, target, body] = make(i);
+        const auto reply = client.send(method, target, std::move(body));
+        if (reply.status != expect) {
+          std::fprintf(stderr, "%s %s answered %d: %.300s\n", method, target, reply.status,
+                       reply.body.c_str());
+          failed = true;
+        }
+        ++done;
+      }
+    });
+  }
+  for (auto& t : threads) t.join();
+  const double elapsed = seconds_since(start);
+  if (failed) std::exit(1);
+  return static_cast<double>(done.load()) / elapsed;
+}
+
+// A fresh database with the fleet's depots, vehicles and batteries.
+fs::path fresh_db(const fs::path& dir, const std::string& name, const demogen::Fleet& fleet,
+                  std::string* token) {
+  const fs::path file = dir / name;
+  auto store = open_store(file);
+  load_structure(*store, fleet);
+  if (token) *token = admin_token(*store);
+  return file;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  const Options o = parse(argc, argv);
+  arm_watchdog(std::chrono::seconds{60 + static_cast<int>(6 * o.seconds)}, kill_daemons);
+  fs::create_directories(o.work);
+  std::vector<ReadingInput> readings;
+  const auto fleet = small_fleet(o.single + o.batches * kBatch, readings);
+  const auto single_bodies = bodies(readings, 0, o.single, 1);
+  const auto batch_bodies = bodies(readings, o.single, o.batches * kBatch, kBatch);
+
+  std::string token;
+  const fs::path served = fresh_db(o.work, "served.db", fleet, &token);
+  double healthz = 0, single = 0, batched = 0;
+  {
+    Daemon daemon(o.pbfleetd, served, o.work / "pbfleetd.log");
+    const Load load{daemon.port(), token};
+    const std::size_t many = 10'000'000;
+    healthz = drive(load, many, o.seconds, 200, [](std::size_t) {
+      return std::tuple{"GET", "/healthz", std::string{}};
+    });
+    single = drive(load, single_bodies.size(), o.seconds, 201, [&](std::size_t i) {
+      return std::tuple{"POST", "/v1/readings", single_bodies[i]};
+    });
+    batched = kBatch * drive(load, batch_bodies.size(), o.seconds, 201, [&](std::size_t i) {
+      return std::tuple{"POST", "/v1/readings", batch_bodies[i]};
+    });
+  }
+  const fs::path raw = fresh_db(o.work, "raw.db", fleet, nullptr);
+  const std::vector<ReadingInput> same_rows(readings.begin() + static_cast<long>(o.single), readings.end());
+  const double raw_rate = raw_insert_rate(raw, same_rows, kBatch);
+
+  print_figure({"ingest.single", single, "readings/s", "GET /healthz", healthz, "req/s",
+                          single / healthz, at_least(0.5, ">= 0.50"), {}, "2 threads, keep-alive"});
+  print_figure({"ingest.batch500", batched, "readings/s", "raw SQLite insert", raw_rate,
+                      "rows/s", batched / raw_rate, at_least(0.5, ">= 0.50"), {},
+                      "500 per request and per raw transaction"});
+  return 0;  // a missed target is a figure to read, not a failed run
+}
