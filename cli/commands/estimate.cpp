@@ -2,6 +2,7 @@
 
 #include <array>
 #include <cmath>
+#include <cstdlib>
 
 #include "cli/commands/context.hpp"
 #include "cli/commands/render.hpp"
@@ -19,7 +20,10 @@ constexpr int kSgDecimals = 4;
 constexpr int kVoltDecimals = 4;
 constexpr int kOtherDecimals = 3;
 
-constexpr std::array<std::pair<std::string_view, std::string_view>, 12> kFieldFlags = {{
+constexpr std::array<std::pair<std::string_view, std::string_view>, 19> kFieldFlags = {{
+    {"electrolyte_temp_f", "--temp"}, {"ambient_temp_c", "--ambient"}, {"ambient_temp_f", "--ambient"},
+    {"load_test_a", "--load-test-a"}, {"load_test_end_v", "--load-test-end-v"}, {"taken_at", "--at"},
+    {"reading_id", "--id"},
     {"cell_sg", "--sg/--cell-sg"},     {"ocv_v", "--ocv"},          {"electrolyte_temp_c", "--temp"},
     {"chemistry", "--chemistry"},     {"cells", "--cells"},        {"full_sg", "--full-sg"},
     {"rest_h", "--rest-hours"},       {"rated_cca_a", "--rated-cca"}, {"low_c", "--low"},
@@ -58,8 +62,13 @@ void fill_cells(const EstimateFlags& f, models::EstimateInput& in) {
 
 }  // namespace
 
-std::string flag_for_field(std::string_view field) {
+std::string flag_for_field(std::string_view field, std::size_t sg_values) {
   auto base = field.substr(0, field.find('['));
+  if (base == "cell_sg" && sg_values <= 1) return "--sg";
+  if (base == "cell_sg" && field.size() > base.size() + 2) {
+    int index = std::atoi(std::string(field.substr(base.size() + 1)).c_str());
+    return "--cell-sg (cell " + std::to_string(index + 1) + ")";
+  }
   for (const auto& [wire, flag] : kFieldFlags) {
     if (wire == base) return std::string(flag) + std::string(field.substr(base.size()));
   }
@@ -148,7 +157,7 @@ int run_estimate(const EstimateFlags& flags, OutputMode mode, Context& ctx) {
   auto output = models::estimate(*input);
   if (!output) {
     auto e = output.error();
-    e.field = flag_for_field(e.field);
+    e.field = flag_for_field(e.field, input->cell_sg.size());
     return ctx.fail(kExitRejected, describe(e));
   }
   if (mode == OutputMode::json) {

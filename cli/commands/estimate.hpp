@@ -31,8 +31,10 @@ struct EstimateFlags {
 // Flags -> model input. Error names the flag and the accepted form or range.
 models::Result<models::EstimateInput> estimate_input(const EstimateFlags& flags);
 
-// The flag a model error's wire field came from ("ocv_v" -> "--ocv").
-std::string flag_for_field(std::string_view field);
+// The flag of `estimate` or `log` a model or validation error's wire field
+// came from ("ocv_v" -> "--ocv";
+// "cell_sg[3]" -> "--cell-sg (cell 4)", or "--sg" when one value was given).
+std::string flag_for_field(std::string_view field, std::size_t sg_values = 0);
 
 // One JSON object: always corrected_sg, acid_molality, acid_wt_percent,
 // cell_emf_v, ocv_model_v, soc_percent, freeze_point_c (null when not

@@ -77,19 +77,22 @@ std::string cold_lines(const models::EstimateInput& in, const models::EstimateOu
   return s;
 }
 
-std::string advice(const models::EstimateInput& in, const models::EstimateOutput& o) {
+bool is_caution(const std::string& note) { return note.rfind("Safety:", 0) == 0; }
+
+// Notes for a person; safety notes go last, in their own paragraph. When the
+// battery needs a charge and the models gave no caution, ours is added.
+std::string notes(const models::EstimateOutput& o) {
   std::string s;
-  bool recharge = o.soc_percent < kRechargeBelowSocPercent;
-  bool wont_crank = o.crank_margin && *o.crank_margin < 1.0;
-  bool may_freeze = o.freeze_margin_c && *o.freeze_margin_c < 0.0;
-  if (!recharge && !wont_crank && !may_freeze) return s;
-  s += "\nRecommendation: ";
-  if (may_freeze) s += "the electrolyte may freeze at the low: bring it inside and recharge before the cold. ";
-  if (wont_crank) s += "it will likely not crank at the low: recharge, and plan a replacement if it still falls short when full. ";
-  if (recharge && !may_freeze && !wont_crank) s += fmt::format("recharge before the cold (SOC under {:.0f} %). ", kRechargeBelowSocPercent);
-  if (in.ocv && o.ocv_settled && !*o.ocv_settled) s += "Re-check the OCV after a longer rest. ";
-  s += "\n\nSafety: " + std::string(analytics::kChargeCaution) + "\n";
-  return s;
+  std::string cautions;
+  for (const auto& n : o.notes) {
+    if (is_caution(n)) cautions += "\n" + n + "\n";
+    else s += "Note: " + n + "\n";
+  }
+  if (cautions.empty() && o.soc_percent < kRechargeBelowSocPercent) {
+    s += fmt::format("Note: Charge is below {:.0f} %: recharge before the cold.\n", kRechargeBelowSocPercent);
+    cautions = "\nSafety: " + std::string(analytics::kChargeCaution) + "\n";
+  }
+  return s + cautions;
 }
 
 }  // namespace
@@ -104,8 +107,7 @@ std::string estimate_text(const models::EstimateInput& in, const models::Estimat
                                            o.disagreement ? "  (SG and OCV disagree)" : ""));
   s += cold_lines(in, o, u);
   if (!o.flags.empty()) s += "\nFlags: " + fmt::format("{}", fmt::join(o.flags, ", ")) + "\n";
-  for (const auto& n : o.notes) s += "Note: " + n + "\n";
-  return s + advice(in, o);
+  return s + notes(o);
 }
 
 }  // namespace pbfleet::cli

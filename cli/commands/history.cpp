@@ -150,7 +150,9 @@ void print_text(const Json& body, const std::vector<Json>& rows, bool charts, Co
     ctx.out() << "(no readings in this period)\n";
     return;
   }
-  auto table = rows_table(rows, kColumns, style.unicode);
+  auto shown = rows;
+  for (auto& r : shown) r["taken_at"] = when(r);  // minutes are enough on screen
+  auto table = rows_table(shown, kColumns, style.unicode);
   ctx.out() << table.render(style);
   if (charts) {
     const int width = std::max(40, ctx.io().terminal_columns - 2);

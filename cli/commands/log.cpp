@@ -5,6 +5,7 @@
 
 #include <fmt/format.h>
 
+#include "cli/commands/estimate.hpp"
 #include "cli/commands/remote.hpp"
 #include "cli/commands/table.hpp"
 #include "cli/client/reading_json.hpp"
@@ -125,7 +126,7 @@ int run_log(LogFlags f, Context& ctx) {
   if (!reading) return ctx.fail(kExitRejected, describe(reading.error()));
   auto problems = models::wire::validate_reading(*reading, ctx.now());
   if (!problems.empty()) {
-    for (const auto& p : problems) ctx.fail(kExitRejected, describe({p.field, p.detail, p.allowed}));
+    for (const auto& p : problems) ctx.fail(kExitRejected, describe({flag_for_field(p.field, reading->cell_sg.size()), p.detail, p.allowed}));
     return kExitRejected;
   }
   int code = kExitOk;
