@@ -58,7 +58,10 @@ bool is_object_array(const Json& v) {
 }
 
 std::string number_text(std::string_view key, double x) {
-  if (key.find("sg") != std::string_view::npos) return fmt::format("{:.3f}", x);
+  // SG and SG differences (cell spread) are read to 0.001 on a hydrometer.
+  if (key.find("sg") != std::string_view::npos || key.find("spread") != std::string_view::npos) {
+    return fmt::format("{:.3f}", x);
+  }
   if (ends_with(key, "_v")) return fmt::format("{:.2f}", x);
   if (key.find("margin") != std::string_view::npos && !ends_with(key, "_c")) return fmt::format("{:.2f}", x);
   return fmt::format("{:.1f}", x);

@@ -14,9 +14,11 @@ TEST_CASE("headers carry units from the wire suffixes and trade abbreviations in
   CHECK(column_header("serial", true) == "serial");
 }
 
-TEST_CASE("cells: SG to 3 decimals, volts to 2, other numbers to 1, null as a dash") {
+TEST_CASE("cells: SG and spreads to 3 decimals, volts to 2, other numbers to 1, null as a dash") {
   CHECK(cell_text("corrected_sg", Json(1.2624)) == "1.262");
   CHECK(cell_text("ocv_v", Json(12.4567)) == "12.46");
+  CHECK(cell_text("cell_spread", Json(0.041)) == "0.041");
+  CHECK(cell_text("latest_spread", Json(0.06)) == "0.060");
   CHECK(cell_text("soc_percent", Json(81.25)) == "81.2");
   CHECK(cell_text("crank_margin", Json(0.876)) == "0.88");
   CHECK(cell_text("weak_cell", Json()) == "-");
