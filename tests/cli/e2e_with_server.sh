@@ -129,6 +129,26 @@ for report in sulfation replacements overdue; do
   run 0 $report
 done
 
+# Offline estimate and POST /v1/estimate give the same object (same keys,
+# same numbers), so scripts can use either.
+run 0 estimate --cell-sg 1.250,1.245,1.250,1.190,1.250,1.245 --ocv 12.41 --rest-hours 2 --temp 5C \
+  --rated-cca 800 --low -25C --engine diesel --displacement-l 7.7 --json
+python3 - "$PBFLEET_URL" "$tmp/admin.token" "$tmp/out" <<'PY' || fail "pbfleet estimate --json and POST /v1/estimate differ"
+import json, sys, urllib.request
+url, token_file, cli_out = sys.argv[1:]
+body = {"cell_sg": [1.250, 1.245, 1.250, 1.190, 1.250, 1.245], "ocv_v": 12.41, "rest_h": 2,
+        "electrolyte_temp_c": 5, "rated_cca_a": 800, "low_c": -25, "engine": "diesel", "displacement_l": 7.7}
+req = urllib.request.Request(url + "/v1/estimate", data=json.dumps(body).encode(), method="POST",
+                             headers={"Content-Type": "application/json",
+                                      "Authorization": "Bearer " + open(token_file).read().strip()})
+server = json.load(urllib.request.urlopen(req, timeout=10))
+cli = json.load(open(cli_out))
+assert sorted(server) == sorted(cli), (sorted(server), sorted(cli))
+for k in ("corrected_sg", "soc_percent", "freeze_point_c", "crank_margin", "cell_emf_v"):
+    assert abs(server[k] - cli[k]) < 1e-3, (k, server[k], cli[k])
+assert server["weak_cell"] == cli["weak_cell"] == 4
+PY
+
 # Roles: a crew token logs readings but may not register depots.
 run 0 token add "Harbour crew" --role crew --save-to "$tmp/crew.token"
 run 0 --token-file "$tmp/crew.token" log NB-2023-0002 --ocv 12.70 --rest-hours 20 --temp 2C
