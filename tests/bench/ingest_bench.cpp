@@ -6,16 +6,17 @@
 //           one transaction per 500 rows, the server's schema and pragmas).
 //
 //   bench_ingest --pbfleetd PATH --work DIR [--single N] [--batches M] [--seconds S]
+//                [--connections C]
 //
-// N and M bound the requests; S bounds each phase's time (whichever ends
-// first). The server runs on 127.0.0.1 with a temporary database in DIR.
-#include <atomic>
+// Load as wrk makes it: 2 client threads, each driving C keep-alive
+// connections (default 32) that send the next request as soon as the last
+// reply came; the healthz limit is measured with the same load. N and M
+// bound the requests; S bounds each phase's time (whichever ends first). The server runs on 127.0.0.1 with a temporary database in DIR.
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
 #include <nlohmann/json.hpp>
 #include <string>
-#include <thread>
 #include <vector>
 
 #include "deploy/demogen/generator.hpp"
@@ -23,7 +24,7 @@
 #include "tests/bench/daemon.hpp"
 #include "tests/bench/figure.hpp"
 #include "tests/bench/fleet_db.hpp"
-#include "tests/bench/http_client.hpp"
+#include "tests/bench/load.hpp"
 #include "tests/bench/raw_sqlite.hpp"
 
 namespace {
@@ -41,6 +42,7 @@ struct Options {
   std::size_t single = 100'000;  // single-reading requests at most
   std::size_t batches = 200;     // batched requests at most
   double seconds = 3.0;          // per phase at most
+  int connections = 32;          // keep-alive connections per client thread
 };
 
 Options parse(int argc, char** argv) {
@@ -52,11 +54,12 @@ Options parse(int argc, char** argv) {
     else if (key == "--single") o.single = std::stoul(value);
     else if (key == "--batches") o.batches = std::stoul(value);
     else if (key == "--seconds") o.seconds = std::stod(value);
+    else if (key == "--connections") o.connections = std::stoi(value);
     else { std::fprintf(stderr, "unknown option %s\n", key.c_str()); std::exit(2); }
   }
   if (o.pbfleetd.empty() || o.work.empty()) {
     std::fprintf(stderr, "usage: bench_ingest --pbfleetd PATH --work DIR [--single N] "
-                         "[--batches M] [--seconds S]\n");
+                         "[--batches M] [--seconds S] [--connections C]\n");
     std::exit(2);
   }
   return o;
@@ -113,40 +116,25 @@ std::vector<std::string> bodies(const std::vector<ReadingInput>& r, std::size_t 
   return out;
 }
 
-// The same request stream from kClientThreads keep-alive connections until
-// `limit` requests were sent or `seconds` passed; returns requests/s.
-// `make(i)` gives the i-th request as {method, target, body}.
-struct Load {
-  std::uint16_t port;
-  std::string token;
-};
-
+// Requests/s of `make` over the standard load; exits on any failure.
 template <class Make>
-double drive(const Load& load, std::size_t limit, double seconds, int expect, Make make) {
-  std::atomic<std::size_t> next{0}, done{0};
-  std::atomic<bool> failed{false};
-  const auto start = SteadyClock::now();
-  std::vector<std::thread> threads;
-  for (int t = 0; t < kClientThreads; ++t) {
-    threads.emplace_back([&] {
-      HttpClient client("127.0.0.1", load.port);
-      client.set_token(load.token);
-      for (std::size_t i; (i = next++) < limit && seconds_since(start) < seconds && !failed;) {
-        auto [method, target, body] = make(i);
-        const auto reply = client.send(method, target, std::move(body));
-        if (reply.status != expect) {
-          std::fprintf(stderr, "%s %s answered %d: %.300s\n", method, target, reply.status,
-                       reply.body.c_str());
-          failed = true;
-        }
-        ++done;
-      }
-    });
+double drive(std::uint16_t port, const std::string& token, const Options& o, std::size_t limit,
+             int expect, Make make) {
+  LoadSpec spec;
+  spec.port = port;
+  spec.token = token;
+  spec.threads = kClientThreads;
+  spec.connections_per_thread = o.connections;
+  spec.limit = limit;
+  spec.seconds = o.seconds;
+  spec.expect_status = expect;
+  spec.make = make;
+  const auto result = run_load(spec);
+  if (!result.error.empty()) {
+    std::fprintf(stderr, "load failed: %s\n", result.error.c_str());
+    std::exit(1);
   }
-  for (auto& t : threads) t.join();
-  const double elapsed = seconds_since(start);
-  if (failed) std::exit(1);
-  return static_cast<double>(done.load()) / elapsed;
+  return result.rate();
 }
 
 // A fresh database with the fleet's depots, vehicles and batteries.
@@ -175,16 +163,16 @@ int main(int argc, char** argv) {
   double healthz = 0, single = 0, batched = 0;
   {
     Daemon daemon(o.pbfleetd, served, o.work / "pbfleetd.log");
-    const Load load{daemon.port(), token};
+    const auto port = daemon.port();
     const std::size_t many = 10'000'000;
-    healthz = drive(load, many, o.seconds, 200, [](std::size_t) {
-      return std::tuple{"GET", "/healthz", std::string{}};
+    healthz = drive(port, token, o, many, 200, [](std::size_t) {
+      return LoadRequest{"GET", "/healthz", {}};
     });
-    single = drive(load, single_bodies.size(), o.seconds, 201, [&](std::size_t i) {
-      return std::tuple{"POST", "/v1/readings", single_bodies[i]};
+    single = drive(port, token, o, single_bodies.size(), 201, [&](std::size_t i) {
+      return LoadRequest{"POST", "/v1/readings", single_bodies[i]};
     });
-    batched = kBatch * drive(load, batch_bodies.size(), o.seconds, 201, [&](std::size_t i) {
-      return std::tuple{"POST", "/v1/readings", batch_bodies[i]};
+    batched = kBatch * drive(port, token, o, batch_bodies.size(), 201, [&](std::size_t i) {
+      return LoadRequest{"POST", "/v1/readings", batch_bodies[i]};
     });
   }
   const fs::path raw = fresh_db(o.work, "raw.db", fleet, nullptr);
@@ -192,7 +180,7 @@ int main(int argc, char** argv) {
   const double raw_rate = raw_insert_rate(raw, same_rows, kBatch);
 
   print_figure({"ingest.single", single, "readings/s", "GET /healthz", healthz, "req/s",
-                          single / healthz, at_least(0.5, ">= 0.50"), {}, "2 threads, keep-alive"});
+                          single / healthz, at_least(0.5, ">= 0.50"), {}, "2 threads x " + std::to_string(o.connections) + " keep-alive conns"});
   print_figure({"ingest.batch500", batched, "readings/s", "raw SQLite insert", raw_rate,
                       "rows/s", batched / raw_rate, at_least(0.5, ">= 0.50"), {},
                       "500 per request and per raw transaction"});
