@@ -1,0 +1,214 @@
+// POST /v1/readings and GET /v1/readings through dispatch (no sockets).
+#include "server/api/handlers/handlers.hpp"
+
+#include <doctest/doctest.h>
+
+#include <algorithm>
+
+#include "tests/api/fixture.hpp"
+
+namespace pbfleet::api {
+
+using nlohmann::json;
+using testing::ApiFixture;
+using testing::body_of;
+using testing::error_fields;
+using testing::good_reading;
+using testing::slug_of;
+
+namespace {
+
+bool has(const std::vector<std::string>& v, const std::string& x) {
+  return std::find(v.begin(), v.end(), x) != v.end();
+}
+
+std::int64_t stored_count(ApiFixture& f) { return f.store().readings_count().value(); }
+
+}  // namespace
+
+TEST_CASE("one good reading is stored and answered 201 with derived values") {
+  ApiFixture f;
+  auto r = f.post("/v1/readings", good_reading("NY-0001", "r-1"), "crew");
+  REQUIRE(r.status == 201);
+  auto body = body_of(r);
+  CHECK(body["stored"] == 1);
+  CHECK(body["replayed"] == 0);
+  REQUIRE(body["readings"].size() == 1);
+  const auto& reading = body["readings"][0];
+  CHECK(reading["reading_id"] == "r-1");
+  CHECK(reading["serial"] == "NY-0001");
+  CHECK(reading["derived"]["corrected_sg"].is_number());
+  CHECK(reading["derived"]["soc_percent"].is_number());
+  CHECK(reading["derived"]["flags"].is_array());
+  CHECK(stored_count(f) == 1);
+}
+
+TEST_CASE("the same reading_id and content again is a replay answered 200 with the original") {
+  ApiFixture f;
+  auto first = f.post("/v1/readings", good_reading("NY-0001", "r-1"), "crew");
+  REQUIRE(first.status == 201);
+  auto again = f.post("/v1/readings", good_reading("NY-0001", "r-1"), "technician");
+  CHECK(again.status == 200);
+  auto body = body_of(again);
+  CHECK(body["stored"] == 0);
+  CHECK(body["replayed"] == 1);
+  CHECK(body["readings"][0]["replayed"] == true);
+  CHECK(body["readings"][0]["received_at"] == body_of(first)["readings"][0]["received_at"]);
+  CHECK(stored_count(f) == 1);
+}
+
+TEST_CASE("the same reading_id with other content is a 409 conflict and stores nothing") {
+  ApiFixture f;
+  REQUIRE(f.post("/v1/readings", good_reading("NY-0001", "r-1"), "crew").status == 201);
+  auto changed = good_reading("NY-0001", "r-1");
+  changed["ocv_v"] = 12.40;
+  json batch = json::array({good_reading("NY-0002", "r-2"), changed});
+  auto r = f.post("/v1/readings", batch, "crew");
+  CHECK(r.status == 409);
+  CHECK(slug_of(r) == "conflict");
+  CHECK(has(error_fields(r), "/1/reading_id"));
+  CHECK(stored_count(f) == 1);  // r-2 was not stored either: the batch is atomic
+}
+
+TEST_CASE("a batch with bad rows lists every bad field by JSON pointer and stores nothing") {
+  ApiFixture f;
+  auto bad_sg = good_reading("NY-0001", "a");
+  bad_sg["cell_sg"][2] = 2.5;
+  auto bad_ocv = good_reading("NY-0002", "b");
+  bad_ocv["ocv_v"] = 30.0;
+  bad_ocv["electrolyte_temp_c"] = -80.0;
+  auto future = good_reading("NY-0001", "c");
+  future["taken_at"] = "2026-01-12T12:00:00Z";  // 48 h ahead of the fixed clock
+  json batch = json::array({good_reading("NY-0001", "ok"), bad_sg, bad_ocv, future});
+  auto r = f.post("/v1/readings", batch, "crew");
+  REQUIRE(r.status == 422);
+  CHECK(slug_of(r) == "validation-failed");
+  const auto fields = error_fields(r);
+  CHECK(has(fields, "/1/cell_sg/2"));
+  CHECK(has(fields, "/2/ocv_v"));
+  CHECK(has(fields, "/2/electrolyte_temp_c"));
+  CHECK(has(fields, "/3/taken_at"));
+  CHECK(fields.size() == 4);
+  for (const auto& e : body_of(r)["errors"]) CHECK_FALSE(e.value("allowed", "").empty());
+  CHECK(stored_count(f) == 0);
+}
+
+TEST_CASE("a cell count that differs from the battery's is refused") {
+  ApiFixture f;
+  auto r5 = good_reading("NY-0001", "x");
+  r5["cell_sg"] = {1.265, 1.265, 1.265, 1.265, 1.265};
+  auto r = f.post("/v1/readings", r5, "crew");
+  CHECK(r.status == 422);
+  CHECK(has(error_fields(r), "/cell_sg"));
+  CHECK(body_of(r)["errors"][0]["allowed"] == "6 values, one per cell");
+}
+
+TEST_CASE("unknown fields are refused with 422 unknown-field naming them") {
+  ApiFixture f;
+  auto r1 = good_reading("NY-0001", "x");
+  r1["soc"] = 99;
+  r1["created_by"] = "me";
+  auto r = f.post("/v1/readings", json::array({r1}), "crew");
+  CHECK(r.status == 422);
+  CHECK(slug_of(r) == "unknown-field");
+  CHECK(has(error_fields(r), "/0/soc"));
+  CHECK(has(error_fields(r), "/0/created_by"));
+  CHECK(stored_count(f) == 0);
+}
+
+TEST_CASE("an unknown battery serial is a validation error on that row") {
+  ApiFixture f;
+  auto r = f.post("/v1/readings", good_reading("NOPE-1", "x"), "crew");
+  CHECK(r.status == 422);
+  CHECK(has(error_fields(r), "/serial"));
+}
+
+TEST_CASE("a depot-scoped token cannot log for another depot's battery") {
+  ApiFixture f;
+  auto out = f.post("/v1/readings", good_reading("NY-0001", "x"), "crew_harbour");
+  CHECK(out.status == 422);
+  CHECK(body_of(out)["errors"][0]["detail"] == "no battery with serial 'NY-0001'");
+  CHECK(f.post("/v1/readings", good_reading("HB-0001", "y"), "crew_harbour").status == 201);
+}
+
+TEST_CASE("a body that is not JSON is 400 and another media type is 415") {
+  ApiFixture f;
+  auto broken = f.call("POST", "/v1/readings", "crew", "{\"serial\":");
+  CHECK(broken.status == 400);
+  CHECK(slug_of(broken) == "malformed-body");
+  auto xml = f.call("POST", "/v1/readings", "crew", "<reading/>", "application/xml");
+  CHECK(xml.status == 415);
+  CHECK(slug_of(xml) == "unsupported-media-type");
+}
+
+TEST_CASE("an empty batch is refused") {
+  ApiFixture f;
+  CHECK(f.call("POST", "/v1/readings", "crew", "[]").status == 422);
+}
+
+TEST_CASE("wrong JSON types are named by pointer") {
+  ApiFixture f;
+  auto r1 = good_reading("NY-0001", "x");
+  r1["ocv_v"] = "12.6";
+  r1["cell_sg"][0] = "high";
+  r1["water_added"] = 1;
+  auto r = f.post("/v1/readings", r1, "crew");
+  CHECK(r.status == 422);
+  CHECK(has(error_fields(r), "/ocv_v"));
+  CHECK(has(error_fields(r), "/cell_sg/0"));
+  CHECK(has(error_fields(r), "/water_added"));
+}
+
+TEST_CASE("Fahrenheit temperatures are accepted and kept with their unit") {
+  ApiFixture f;
+  auto r1 = good_reading("NY-0001", "f1");
+  r1.erase("electrolyte_temp_c");
+  r1["electrolyte_temp_f"] = 41.0;
+  auto r = f.post("/v1/readings", r1, "crew");
+  REQUIRE(r.status == 201);
+  auto stored = body_of(r)["readings"][0];
+  CHECK(stored["electrolyte_temp_unit"] == "F");
+  CHECK(stored["electrolyte_temp_c"].get<double>() == doctest::Approx(5.0));
+}
+
+TEST_CASE("CSV readings share the validation and name the row and column") {
+  ApiFixture f;
+  const std::string csv =
+      "serial,taken_at,ocv_v,cell_sg,electrolyte_temp,rest_h\r\n"
+      "NY-0001,2026-01-10T08:00:00Z,12.60,1.265;1.260;1.265;1.255;1.265;1.260,41F,12\r\n"
+      "NY-0002,2026-01-10T08:05:00Z,12.60,1.265;1.260;2.500;1.255;1.265;1.260,5C,12\r\n";
+  auto r = f.call("POST", "/v1/readings", "crew", csv, "text/csv");
+  REQUIRE(r.status == 422);
+  auto e = body_of(r)["errors"];
+  REQUIRE(e.size() == 1);
+  CHECK(e[0]["field"] == "cell_sg/2");
+  CHECK(e[0]["row"] == 2);
+  CHECK(stored_count(f) == 0);
+
+  const std::string good =
+      "\xEF\xBB\xBFserial,taken_at,ocv_v,cell_sg,electrolyte_temp,rest_h\r\n"
+      "NY-0001,2026-01-10T08:00:00Z,12.60,1.265;1.260;1.265;1.255;1.265;1.260,41F,12\r\n"
+      "NY-0002,2026-01-10T08:05:00Z,12.60,1.265;1.260;1.265;1.255;1.265;1.260,5C,12\r\n";
+  auto ok = f.call("POST", "/v1/readings", "crew", good, "text/csv; charset=utf-8");
+  CHECK(ok.status == 201);
+  CHECK(body_of(ok)["stored"] == 2);
+  CHECK(stored_count(f) == 2);
+}
+
+TEST_CASE("readings are listed by battery with a cursor") {
+  ApiFixture f;
+  json batch = json::array();
+  for (int i = 0; i < 5; ++i) batch.push_back(good_reading("NY-0001", "p" + std::to_string(i), 60 + i));
+  REQUIRE(f.post("/v1/readings", batch, "crew").status == 201);
+  auto page1 = f.get("/v1/readings?serial=NY-0001&limit=3", "technician");
+  REQUIRE(page1.status == 200);
+  auto b1 = body_of(page1);
+  CHECK(b1["items"].size() == 3);
+  REQUIRE(b1["next_cursor"].is_string());
+  auto page2 = f.get("/v1/readings?serial=NY-0001&limit=3&cursor=" + b1["next_cursor"].get<std::string>(),
+                     "technician");
+  CHECK(body_of(page2)["items"].size() == 2);
+  CHECK(f.get("/v1/readings?limit=5000").status == 400);
+}
+
+}  // namespace pbfleet::api
