@@ -40,10 +40,16 @@ Authenticator::Authenticator(storage::Store& store, AuthLimits limits)
     : store_(store), limits_(limits) {}
 
 std::variant<Caller, http::Response> Authenticator::authenticate(const http::Request& request) {
+  // The throttle applies to failing tokens only: a valid token behind the
+  // same address (a shared NAT) keeps working while a guesser is held off.
   const std::string address = peer_address(request.peer);
-  if (throttled(address))
-    return problem(ProblemKind::too_many_requests,
-                   "too many requests with bad tokens from this address; wait a minute");
+  auto refuse = [&](std::string_view detail) -> http::Response {
+    if (throttled(address))
+      return problem(ProblemKind::too_many_requests,
+                     "too many requests with bad tokens from this address; wait a minute");
+    note_failure(address);
+    return problem(ProblemKind::unauthorized, detail);
+  };
   std::string_view raw = bearer_token(request);
   if (raw.empty())
     return problem(ProblemKind::unauthorized, "send Authorization: Bearer <token>");
@@ -53,13 +59,9 @@ std::variant<Caller, http::Response> Authenticator::authenticate(const http::Req
   if (!found) {
     if (found.error().code != storage::StoreErrc::not_found)
       return problem(ProblemKind::storage_unavailable, "token store unavailable; retry");
-    note_failure(address);
-    return problem(ProblemKind::unauthorized, "unknown token");
+    return refuse("unknown token");
   }
-  if (found->revoked_at) {
-    note_failure(address);
-    return problem(ProblemKind::unauthorized, "token revoked");
-  }
+  if (found->revoked_at) return refuse("token revoked");
   std::lock_guard lock(mutex_);
   cache_[hash.bytes] = Cached{*found, Clock::now() + limits_.cache_ttl};
   return caller_of(*found);
