@@ -12,7 +12,9 @@ std::optional<storage::Id> parse_id(const std::string& text) {
 }
 
 http::Response bad_id(const std::string& name, const std::string& text) {
-  return problem(ProblemKind::not_found, "no " + name + " with id '" + text.substr(0, 40) + "'");
+  // Worded exactly as the store's not_found, so an object outside a
+  // token's scope answers byte for byte like a missing one.
+  return problem(ProblemKind::not_found, "no " + name + " with id " + text.substr(0, 40));
 }
 
 bool in_scope(const Call& call, std::optional<storage::Id> depot) {
