@@ -1,6 +1,8 @@
 #include "server/api/codecs.hpp"
 
 #include <charconv>
+#include <chrono>
+#include <optional>
 
 #include "models/wire/reading.hpp"
 
@@ -143,9 +145,30 @@ void read_battery_ratings(FieldReader& in, st::Battery& into) {
 
 }  // namespace
 
+namespace {
+
+// The wire library's serial rule (no '/', '\\', "..", control characters or
+// edge spaces), so a battery can only be registered under a serial its
+// readings can name. validate_reading is where the rule lives; only its
+// "serial" finding is used here.
+std::optional<models::FieldError> serial_problem(const std::string& serial) {
+  models::wire::ReadingInput probe;
+  probe.serial = serial;
+  probe.taken_at = std::chrono::sys_days{std::chrono::year{2020} / 1 / 1};
+  probe.ocv = models::Volts{12.0};
+  for (auto& e : models::wire::validate_reading(probe, probe.taken_at))
+    if (e.field == "serial") return e;
+  return std::nullopt;
+}
+
+}  // namespace
+
 void read_battery(FieldReader& in, st::Battery& into, bool creating) {
   if (creating) {
-    if (auto v = in.text("serial", true, kMaxSerialLength)) into.serial = *v;
+    if (auto v = in.text("serial", true, kMaxSerialLength)) {
+      into.serial = *v;
+      if (auto problem = serial_problem(*v)) in.invalid("serial", problem->detail, problem->allowed);
+    }
     if (auto v = in.integer("vehicle_id", false, 1, kMaxId)) into.vehicle_id = *v;
   }
   read_battery_type(in, into, creating);
