@@ -75,11 +75,8 @@ bool FieldReader::is_null(std::string_view key) const {
   return it != object_.end() && it->is_null();
 }
 
-// `key` here is written by our code, never taken from the request, and may
-// be a relative pointer into a member ("cell_sg/2"): it is appended as is,
-// not escaped like a member name (escaping gave "/cell_sg~12").
 void FieldReader::invalid(std::string_view key, std::string detail, std::string allowed) {
-  issues_.invalid.push_back({base_ + "/" + std::string(key), std::move(detail), std::move(allowed), row_});
+  issues_.invalid.push_back({pointer(key), std::move(detail), std::move(allowed), row_});
 }
 
 void FieldReader::invalid_item(std::string_view key, std::size_t index, std::string detail,
