@@ -61,6 +61,9 @@ class FieldReader {
 
   // Records a problem with `key` of this object.
   void invalid(std::string_view key, std::string detail, std::string allowed = {});
+  // Records a problem with item `index` of the array `key` ("/cell_sg/2").
+  void invalid_item(std::string_view key, std::size_t index, std::string detail,
+                    std::string allowed = {});
   // Records every key never asked for as unknown. Call once, at the end.
   void finish();
   [[nodiscard]] std::string pointer(std::string_view key) const { return pointer_to(base_, key); }

@@ -38,7 +38,7 @@ void read_cells(FieldReader& in, wire::ReadingInput& r) {
   for (std::size_t i = 0; i < cells->size(); ++i) {
     const json& v = (*cells)[i];
     if (!v.is_number()) {
-      in.invalid("cell_sg/" + std::to_string(i), "expected a number", "1.000 to 1.400");
+      in.invalid_item("cell_sg", i, "expected a number", "1.000 to 1.400");
       continue;
     }
     r.cell_sg.push_back(models::SpecificGravity{v.get<double>()});

@@ -22,7 +22,7 @@ void read_cells(FieldReader& in, models::EstimateInput& e) {
   for (std::size_t i = 0; i < cells->size(); ++i) {
     const json& v = (*cells)[i];
     if (!v.is_number() || v.get<double>() < wire::kMinSg || v.get<double>() > wire::kMaxSg) {
-      in.invalid("cell_sg/" + std::to_string(i), "not a hydrometer SG", "1.000 to 1.400");
+      in.invalid_item("cell_sg", i, "not a hydrometer SG", "1.000 to 1.400");
       continue;
     }
     e.cell_sg.push_back(models::SpecificGravity{v.get<double>()});
