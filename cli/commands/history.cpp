@@ -165,12 +165,20 @@ void print_text(const Json& body, const std::vector<Json>& rows, bool charts, Co
   }
 }
 
+// A bare YYYY-MM-DD means the whole day in UTC; anything else goes as given
+// (RFC 3339) and the server judges it.
+std::string day_bound(const std::string& when, bool end_of_day) {
+  const bool bare_date = when.size() == 10 && when[4] == '-' && when[7] == '-';
+  if (!bare_date) return when;
+  return when + (end_of_day ? "T23:59:59Z" : "T00:00:00Z");
+}
+
 int run_history(const HistoryFlags& f, Context& ctx) {
   int code = kExitOk;
   auto api = api_or_fail(ctx, code);
   if (!api) return code;
   auto path = client::with_query("/v1/batteries/" + client::url_encode(f.serial) + "/history",
-                                 {{"from", f.from}, {"to", f.to}});
+                                 {{"from", day_bound(f.from, false)}, {"to", day_bound(f.to, true)}});
   auto reply = api->get(path);
   if (!reply.ok) return ctx.fail(reply);
   auto rows = history_rows(reply.json);

@@ -60,14 +60,13 @@ void install_vehicle(CLI::App& cmd, Context& ctx) {
   auto* add = cmd.add_subcommand("add", "Register a vehicle");
   add->add_option("code", a->code, "Fleet code painted on the vehicle")->required();
   add->add_option("--depot", a->depot_id, "Depot id")->required()->type_name("ID");
-  auto* engine = add->add_option("--engine", a->engine, "gasoline or diesel")
+  add->add_option("--engine", a->engine, "gasoline or diesel")
                      ->check(CLI::IsMember({"gasoline", "diesel"}))->type_name("KIND");
   add->add_option("--displacement-l", a->displacement_l, "Engine displacement in litres")->type_name("L");
-  auto* req = add->add_option("--required-cca", a->required_cca_a, "Cranking need at -18 C, when known (A)")->type_name("A");
-  req->excludes(engine);
+  add->add_option("--required-cca", a->required_cca_a, "Cranking need at -18 C, when known (A); overrides the estimate from the engine")->type_name("A");
   add_output_flags(*add, a->output, false);
   add->footer(example("pbfleet vehicle add VAN-12 --depot 2 --engine gasoline --displacement-l 2.0\n"
-                      "pbfleet vehicle add PLOUGH-3 --depot 3 --required-cca 1000"));
+                      "pbfleet vehicle add PLOUGH-3 --depot 3 --engine diesel --required-cca 1000"));
   add->callback([a, &ctx] { ctx.exit_code = run_vehicle_add(*a, ctx); });
 
   auto l = std::make_shared<VehicleListFlags>();

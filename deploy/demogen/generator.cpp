@@ -185,6 +185,9 @@ Fleet make_fleet(const FleetConfig& config) {
     v.depot_index = std::min(depot, 3);
     v.engine = kind.engine;
     v.displacement_l = round_to(dice.between(kind.min_l, kind.max_l), 0.1);
+    // Fjellvik sizes its batteries generously for the cold: the engines need
+    // well under the rating at -18 C (invented for the demo).
+    v.required_cca_a = round_to(kind.rated_cca_a * dice.between(0.28, 0.42), 10.0);
     fleet.vehicles.push_back(v);
 
     BatterySpecOut b;

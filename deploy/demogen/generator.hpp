@@ -44,6 +44,7 @@ struct VehicleSpec {
   int depot_index;        // 0-based into depots, id = index + 1 on a fresh database
   models::EngineKind engine;
   double displacement_l;
+  double required_cca_a;  // cranking need at -18 C, as the fleet's engineers specified it
 };
 
 // How the simulated battery ages (what the demo shows off).

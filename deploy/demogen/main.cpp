@@ -49,10 +49,10 @@ void write_structure(const fs::path& out, const demogen::Fleet& fleet) {
   depots << "name,time_zone,design_low_c\n";
   for (const auto& d : fleet.depots) depots << d.name << ',' << d.time_zone << ',' << d.design_low_c << '\n';
   std::ofstream vehicles(out / "vehicles.csv");
-  vehicles << "code,depot_id,engine,displacement_l\n";
+  vehicles << "code,depot_id,engine,displacement_l,required_cca_a\n";
   for (const auto& v : fleet.vehicles)
     vehicles << v.code << ',' << v.depot_index + 1 << ',' << models::to_string(v.engine) << ','
-             << v.displacement_l << '\n';
+             << v.displacement_l << ',' << v.required_cca_a << '\n';
   std::ofstream batteries(out / "batteries.csv");
   batteries << "serial,chemistry,cells,rated_cca_a,reserve_capacity_min,full_charge_sg,installed_on,vehicle_id,simulated_condition\n";
   for (const auto& b : fleet.batteries)

@@ -123,7 +123,7 @@ void add_watch_reasons(const WinterRisk& r, double threshold_pct, const Analytic
 
 void choose_action(WinterRisk& r, double threshold_pct) {
   if (r.replacement_expected) {
-    r.action = "replace before the cold date";
+    r.action = "will not crank at the low even fully charged: fit a higher-rated battery or plan engine and battery heating before the cold date";
   } else if (r.level == RiskLevel::act_now || *r.projected_soc_percent < threshold_pct) {
     r.action = "recharge fully before the cold date, then take a settled reading";
     r.cautions.push_back(kChargeCaution);
