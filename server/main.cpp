@@ -12,7 +12,9 @@
 #include <spdlog/sinks/stdout_color_sinks.h>
 #include <spdlog/spdlog.h>
 
+#include "models/wire/reading.hpp"
 #include "server/api/api.hpp"
+#include "server/api/auth.hpp"
 #include "server/api/bootstrap.hpp"
 #include "server/api/config.hpp"
 #include "server/http/server.hpp"
@@ -30,6 +32,7 @@ struct TokenCommand {
   std::string role = "crew";
   std::string name = "cli";
   std::optional<storage::Id> depot_id;
+  std::optional<int> expires_in_days;  // nullopt: until revoked
 };
 
 int fail(int code, const std::string& message) {
@@ -53,9 +56,14 @@ pbfleet::models::Result<api::Config> load_config(const std::string& file, api::S
 int print_new_token(storage::Store& store, const TokenCommand& t) {
   auto role = storage::parse_role(t.role);
   if (!role) return fail(kExitUsage, "--role must be crew, technician, manager or admin");
-  auto minted = api::mint_token(store, t.name, *role, t.depot_id);
+  std::optional<std::chrono::days> lifetime;
+  if (t.expires_in_days) lifetime = std::chrono::days{*t.expires_in_days};
+  auto minted = api::mint_token(store, t.name, *role, t.depot_id, lifetime);
   if (!minted) return fail(kExitFailure, "cannot create token: " + minted.error().detail);
-  std::cerr << "token " << minted->token.id << " (" << t.role << ") created; it is shown once:\n";
+  std::cerr << "token " << minted->token.id << " (" << t.role << ") created";
+  if (minted->token.expires_at)
+    std::cerr << ", expires " << pbfleet::models::wire::format_timestamp(*minted->token.expires_at);
+  std::cerr << "; it is shown once:\n";
   std::cout << minted->raw << std::endl;
   return 0;
 }
@@ -100,6 +108,9 @@ int main(int argc, char** argv) {
   create->add_option("--role", token.role, "crew, technician, manager or admin")->required();
   create->add_option("--name", token.name, "A name to recognise the token by");
   create->add_option("--depot-id", token.depot_id, "Limit the token to one depot");
+  create->add_option("--expires-in", token.expires_in_days, "Days until the token stops working (default: until revoked)")
+      ->type_name("DAYS")
+      ->check(CLI::Range(api::kMinTokenLifetimeDays, api::kMaxTokenLifetimeDays));
   token_cmd->require_subcommand(1);
   token_cmd->fallthrough();
   create->fallthrough();

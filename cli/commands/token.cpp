@@ -1,6 +1,7 @@
 // `pbfleet token add|list|revoke` (admin): access tokens for crews,
 // technicians and managers. A new token is shown once; --save-to writes it
-// to a file only its owner can read instead.
+// to a file only its owner can read instead. --expires-in gives it a
+// lifetime in days (the server refuses it from then on).
 #include <fcntl.h>
 #include <unistd.h>
 
@@ -14,11 +15,15 @@ namespace pbfleet::cli {
 namespace {
 
 constexpr mode_t kSecretFileMode = 0600;
+// The lifetimes the server accepts (expires_in_days in server/api/CONTRACT.md).
+constexpr int kMinLifetimeDays = 1;
+constexpr int kMaxLifetimeDays = 3650;
 
 struct TokenAddFlags {
   std::string name;
   std::string role;
   std::optional<long> depot_id;
+  std::optional<int> expires_in_days;
   std::string save_to;
 };
 
@@ -36,6 +41,7 @@ int run_add(const TokenAddFlags& f, Context& ctx) {
   if (!api) return code;
   client::Json body{{"name", f.name}, {"role", f.role}, {"depot_id", nullptr}};
   if (f.depot_id) body["depot_id"] = *f.depot_id;
+  if (f.expires_in_days) body["expires_in_days"] = *f.expires_in_days;
   auto reply = api->post("/v1/tokens", body);
   if (!reply.ok) return ctx.fail(reply);
   auto token = reply.json.value("token", std::string());
@@ -49,7 +55,10 @@ int run_add(const TokenAddFlags& f, Context& ctx) {
     return kExitOk;
   }
   ctx.out() << token << '\n';
-  ctx.err() << "token " << id << " for " << f.role << ": shown once, store it now\n";
+  ctx.err() << "token " << id << " for " << f.role;
+  if (auto until = reply.json.find("expires_at"); until != reply.json.end() && until->is_string())
+    ctx.err() << " (expires " << until->get<std::string>() << ")";
+  ctx.err() << ": shown once, store it now\n";
   return kExitOk;
 }
 
@@ -59,7 +68,7 @@ int run_list(const OutputFlags& output, Context& ctx) {
   if (!api) return code;
   auto list = fetch_all(*api, "/v1/tokens", {});
   if (list.failure) return ctx.fail(*list.failure);
-  print_list(ctx, list.items, output.mode(), {"id", "name", "role", "depot_id", "created_at", "revoked_at"});
+  print_list(ctx, list.items, output.mode(), {"id", "name", "role", "depot_id", "created_at", "expires_at", "revoked_at"});
   return kExitOk;
 }
 
@@ -85,9 +94,11 @@ void install_token(CLI::App& cmd, Context& ctx) {
   add->add_option("--role", a->role, "crew, technician, manager or admin")
       ->required()->check(CLI::IsMember({"crew", "technician", "manager", "admin"}));
   add->add_option("--depot", a->depot_id, "Limit the token to one depot (id)")->type_name("ID");
+  add->add_option("--expires-in", a->expires_in_days, "Days until the token stops working (default: until revoked)")
+      ->type_name("DAYS")->check(CLI::Range(kMinLifetimeDays, kMaxLifetimeDays));
   add->add_option("--save-to", a->save_to, "Write the token to this new file (mode 0600) instead of stdout")
       ->type_name("FILE");
-  add->footer(example("pbfleet token add \"Valley manager\" --role manager"));
+  add->footer(example("pbfleet token add \"Valley manager\" --role manager --expires-in 90"));
   add->callback([a, &ctx] { ctx.exit_code = run_add(*a, ctx); });
 
   auto l = std::make_shared<OutputFlags>();

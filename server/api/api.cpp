@@ -21,7 +21,7 @@ struct Api::Impl {
 
   Impl(storage::Store& store, const Clock& clock, ApiOptions o)
       : options(std::move(o)),
-        auth(store, options.auth),
+        auth(store, clock, options.auth),
         writer(store, clock, options.writer),
         context{store, clock, metrics, auth, writer, options} {}
 };

@@ -2,6 +2,7 @@
 
 #include <cctype>
 
+#include "models/wire/reading.hpp"
 #include "server/api/problem.hpp"
 #include "server/storage/tokens.hpp"
 
@@ -36,8 +37,8 @@ std::string peer_address(const std::string& peer) {
   return colon == std::string::npos ? peer : peer.substr(0, colon);
 }
 
-Authenticator::Authenticator(storage::Store& store, AuthLimits limits)
-    : store_(store), limits_(limits) {}
+Authenticator::Authenticator(storage::Store& store, const Clock& clock, AuthLimits limits)
+    : store_(store), clock_(clock), limits_(limits) {}
 
 std::variant<Caller, http::Response> Authenticator::authenticate(const http::Request& request) {
   // The throttle applies to failing tokens only: a valid token behind the
@@ -54,7 +55,15 @@ std::variant<Caller, http::Response> Authenticator::authenticate(const http::Req
   if (raw.empty())
     return problem(ProblemKind::unauthorized, "send Authorization: Bearer <token>");
   const storage::TokenHash hash = storage::hash_token(raw);
-  if (auto token = cached(hash)) return caller_of(*token);
+  // Expiry is checked on every request, cached or not, so a token stops
+  // working at its expires_at and not up to cache_ttl later.
+  auto unexpired = [&](const storage::ApiToken& token) -> std::variant<Caller, http::Response> {
+    if (storage::expired(token, clock_.now()))
+      return refuse("token expired at " + models::wire::format_timestamp(*token.expires_at) +
+                    "; ask an admin for a new one");
+    return caller_of(token);
+  };
+  if (auto token = cached(hash)) return unexpired(*token);
   auto found = store_.find_token(hash);
   if (!found) {
     if (found.error().code != storage::StoreErrc::not_found)
@@ -62,9 +71,11 @@ std::variant<Caller, http::Response> Authenticator::authenticate(const http::Req
     return refuse("unknown token");
   }
   if (found->revoked_at) return refuse("token revoked");
-  std::lock_guard lock(mutex_);
-  cache_[hash.bytes] = Cached{*found, Clock::now() + limits_.cache_ttl};
-  return caller_of(*found);
+  {
+    std::lock_guard lock(mutex_);
+    cache_[hash.bytes] = Cached{*found, Steady::now() + limits_.cache_ttl};
+  }
+  return unexpired(*found);
 }
 
 void Authenticator::forget_cached() {
@@ -76,7 +87,7 @@ std::optional<storage::ApiToken> Authenticator::cached(const storage::TokenHash&
   std::lock_guard lock(mutex_);
   auto it = cache_.find(hash.bytes);
   if (it == cache_.end()) return std::nullopt;
-  if (Clock::now() > it->second.until || !storage::same_token_hash(it->second.token.hash, hash)) {
+  if (Steady::now() > it->second.until || !storage::same_token_hash(it->second.token.hash, hash)) {
     cache_.erase(it);
     return std::nullopt;
   }
@@ -87,7 +98,7 @@ bool Authenticator::throttled(const std::string& address) {
   std::lock_guard lock(mutex_);
   auto it = failures_.find(address);
   if (it == failures_.end()) return false;
-  if (Clock::now() - it->second.first > limits_.window) {
+  if (Steady::now() - it->second.first > limits_.window) {
     failures_.erase(it);
     return false;
   }
@@ -98,8 +109,8 @@ void Authenticator::note_failure(const std::string& address) {
   std::lock_guard lock(mutex_);
   if (failures_.size() >= kMaxFailureEntries) failures_.clear();
   auto& [start, count] = failures_[address];
-  if (count == 0 || Clock::now() - start > limits_.window) {
-    start = Clock::now();
+  if (count == 0 || Steady::now() - start > limits_.window) {
+    start = Steady::now();
     count = 0;
   }
   ++count;

@@ -4,7 +4,9 @@
 // up; the store compares hashes in constant time. Known tokens are cached
 // briefly; revoking through the API drops the cache entry at once, so a
 // revoked token gets 401 on the very next request. Repeated bad tokens from
-// one address are answered 429 for a while (guessing is throttled).
+// one address are answered 429 for a while (guessing is throttled). A
+// token past its expires_at is refused like a revoked one, checked against
+// the injected clock on every request (cached or not).
 #pragma once
 
 #include <array>
@@ -16,6 +18,7 @@
 #include <string>
 #include <variant>
 
+#include "server/api/clock.hpp"
 #include "server/http/message.hpp"
 #include "server/storage/store.hpp"
 
@@ -41,6 +44,12 @@ struct Caller {
   std::optional<storage::Id> depot_id;  // scope; nullopt = every depot
 };
 
+// Lifetimes a new token may be given (POST /v1/tokens expires_in_days,
+// `pbfleetd token create --expires-in`), in days. Ours to set: a day is the
+// shortest useful shift token; ten years is "never" for a fleet.
+inline constexpr int kMinTokenLifetimeDays = 1;
+inline constexpr int kMaxTokenLifetimeDays = 3650;
+
 struct AuthLimits {
   // Bad tokens one address may present per window before getting 429.
   int failures_per_window = 20;
@@ -52,7 +61,7 @@ struct AuthLimits {
 
 class Authenticator {
  public:
-  Authenticator(storage::Store& store, AuthLimits limits = {});
+  Authenticator(storage::Store& store, const Clock& clock, AuthLimits limits = {});
 
   // The caller, or the problem response (401, 429, 503) to send.
   std::variant<Caller, http::Response> authenticate(const http::Request& request);
@@ -60,20 +69,21 @@ class Authenticator {
   void forget_cached();
 
  private:
-  using Clock = std::chrono::steady_clock;
+  using Steady = std::chrono::steady_clock;
   struct Cached {
     storage::ApiToken token;
-    Clock::time_point until;
+    Steady::time_point until;
   };
   bool throttled(const std::string& address);
   void note_failure(const std::string& address);
   std::optional<storage::ApiToken> cached(const storage::TokenHash& hash);
 
   storage::Store& store_;
+  const Clock& clock_;
   AuthLimits limits_;
   std::mutex mutex_;
   std::map<std::array<unsigned char, 32>, Cached> cache_;
-  std::map<std::string, std::pair<Clock::time_point, int>> failures_;  // address -> (window start, count)
+  std::map<std::string, std::pair<Steady::time_point, int>> failures_;  // address -> (window start, count)
 };
 
 // The address part of "host:port" (or "[v6]:port").

@@ -7,6 +7,7 @@
 #include <chrono>
 #include <cstring>
 
+#include "server/api/auth.hpp"
 #include "server/storage/tokens.hpp"
 
 namespace pbfleet::api {
@@ -29,10 +30,19 @@ models::Result<bool> write_private_file(const std::filesystem::path& file, const
 }  // namespace
 
 models::Result<NewToken> mint_token(storage::Store& store, const std::string& name,
-                                    storage::Role role, std::optional<storage::Id> depot_id) {
+                                    storage::Role role, std::optional<storage::Id> depot_id,
+                                    std::optional<std::chrono::days> lifetime) {
+  if (lifetime && (lifetime->count() < kMinTokenLifetimeDays ||
+                   lifetime->count() > kMaxTokenLifetimeDays)) {
+    return models::Error{"expires-in", "out of range: " + std::to_string(lifetime->count()),
+                         std::to_string(kMinTokenLifetimeDays) + " to " +
+                             std::to_string(kMaxTokenLifetimeDays) + " days"};
+  }
   std::string raw = storage::new_raw_token();
   const auto now = std::chrono::floor<std::chrono::seconds>(std::chrono::system_clock::now());
-  auto created = store.create_token(name, role, depot_id, storage::hash_token(raw), now);
+  std::optional<std::chrono::sys_seconds> expires_at;
+  if (lifetime) expires_at = now + *lifetime;
+  auto created = store.create_token(name, role, depot_id, storage::hash_token(raw), now, expires_at);
   if (!created) return models::Error{created.error().field, created.error().detail, ""};
   return NewToken{created.value(), std::move(raw)};
 }

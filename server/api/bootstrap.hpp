@@ -11,6 +11,7 @@
 // A raw token never goes to the log, the environment or the command line.
 #pragma once
 
+#include <chrono>
 #include <filesystem>
 #include <optional>
 #include <string>
@@ -25,9 +26,12 @@ struct NewToken {
   std::string raw;  // shown once
 };
 
-// Creates a token and returns it with its raw text.
+// Creates a token and returns it with its raw text. `lifetime` (nullopt:
+// until revoked) must be kMinTokenLifetimeDays..kMaxTokenLifetimeDays
+// (auth.hpp); otherwise an error naming expires-in and the range.
 models::Result<NewToken> mint_token(storage::Store& store, const std::string& name,
-                                    storage::Role role, std::optional<storage::Id> depot_id);
+                                    storage::Role role, std::optional<storage::Id> depot_id,
+                                    std::optional<std::chrono::days> lifetime = std::nullopt);
 
 // When the store holds no token: mints an admin token and writes it (plus a
 // newline) to `file` with mode 0600. Returns true when written, false when

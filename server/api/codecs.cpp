@@ -73,7 +73,9 @@ json to_json(const st::ApiToken& t) {
           {"depot_id", optional_json(t.depot_id)},
           {"created_at", models::wire::format_timestamp(t.created_at)},
           {"revoked_at",
-           t.revoked_at ? json(models::wire::format_timestamp(*t.revoked_at)) : json(nullptr)}};
+           t.revoked_at ? json(models::wire::format_timestamp(*t.revoked_at)) : json(nullptr)},
+          {"expires_at",
+           t.expires_at ? json(models::wire::format_timestamp(*t.expires_at)) : json(nullptr)}};
 }
 
 void read_depot(FieldReader& in, st::Depot& into, bool creating) {

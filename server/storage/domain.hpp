@@ -105,7 +105,14 @@ struct ApiToken {
   std::optional<Id> depot_id;  // scope: only this depot's objects; nullopt = all
   std::chrono::sys_seconds created_at{};
   std::optional<std::chrono::sys_seconds> revoked_at;
+  // Refused from this instant on; nullopt = valid until revoked.
+  std::optional<std::chrono::sys_seconds> expires_at;
   TokenHash hash;  // filled on read; compare with tokens.hpp same_token_hash
 };
+
+// True when the token has an expiry and `now` has reached it.
+[[nodiscard]] inline bool expired(const ApiToken& token, std::chrono::sys_seconds now) {
+  return token.expires_at && now >= *token.expires_at;
+}
 
 }  // namespace pbfleet::storage

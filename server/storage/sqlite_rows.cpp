@@ -127,6 +127,7 @@ ApiToken read_token(const Statement& s) {
   const auto hash = s.blob_at(6);
   if (hash.size() == t.hash.bytes.size())
     std::memcpy(t.hash.bytes.data(), hash.data(), hash.size());
+  if (auto at = s.opt_int_at(7)) t.expires_at = seconds_from_db(*at);
   return t;
 }
 

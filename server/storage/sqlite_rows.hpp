@@ -30,7 +30,7 @@ inline constexpr std::string_view kReadingSelect =
     " r.after_charge, r.water_added"
     " FROM readings r JOIN batteries b ON b.id = r.battery_id";
 inline constexpr std::string_view kTokenSelect =
-    "SELECT t.id, t.name, t.role, t.depot_id, t.created_at, t.revoked_at, t.hash"
+    "SELECT t.id, t.name, t.role, t.depot_id, t.created_at, t.revoked_at, t.hash, t.expires_at"
     " FROM api_tokens t";
 
 Depot read_depot(const Statement& s);

@@ -64,7 +64,8 @@ class SqliteStore final : public Store {
   StoreResult<std::int64_t> readings_count() override;
 
   StoreResult<ApiToken> create_token(std::string_view name, Role role, std::optional<Id> depot_id,
-                                     const TokenHash& hash, std::chrono::sys_seconds at) override;
+                                     const TokenHash& hash, std::chrono::sys_seconds at,
+                                     std::optional<std::chrono::sys_seconds> expires_at) override;
   StoreResult<ApiToken> find_token(const TokenHash& hash) override;
   StoreResult<Page<ApiToken>> list_tokens(const PageRequest& page) override;
   StoreResult<ApiToken> revoke_token(Id id, std::chrono::sys_seconds at) override;

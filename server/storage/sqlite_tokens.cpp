@@ -15,16 +15,25 @@ ApiToken token_by_id(Db& db, Id id) {
 
 StoreResult<ApiToken> SqliteStore::create_token(std::string_view name, Role role,
                                                 std::optional<Id> depot_id, const TokenHash& hash,
-                                                std::chrono::sys_seconds at) {
+                                                std::chrono::sys_seconds at,
+                                                std::optional<std::chrono::sys_seconds> expires_at) {
   return write([&](Db& db) {
     if (depot_id && !db.prepare("SELECT 1 FROM depots WHERE id = ?1").bind(1, *depot_id).step()) {
       fail(StoreErrc::constraint, "no depot with id " + std::to_string(*depot_id), "depot_id");
     }
+    if (expires_at && *expires_at <= at) {
+      fail(StoreErrc::invalid, "a token must expire after it is created", "expires_at");
+    }
     auto s = db.prepare(
-        "INSERT INTO api_tokens (name, role, depot_id, hash, created_at)"
-        " VALUES (?1, ?2, ?3, ?4, ?5)");
+        "INSERT INTO api_tokens (name, role, depot_id, hash, created_at, expires_at)"
+        " VALUES (?1, ?2, ?3, ?4, ?5, ?6)");
     s.bind(1, name).bind(2, to_string(role)).bind(3, depot_id);
     s.bind_blob(4, hash.bytes.data(), hash.bytes.size()).bind(5, to_db(at));
+    if (expires_at) {
+      s.bind(6, to_db(*expires_at));
+    } else {
+      s.bind_null(6);
+    }
     s.run();
     return token_by_id(db, db.last_insert_id());
   });

@@ -221,11 +221,14 @@ class Store {
   // Readings stored in all (kept as a counter, O(1)).
   virtual StoreResult<std::int64_t> readings_count() = 0;
 
-  // API tokens. Only the hash is stored.
-  virtual StoreResult<ApiToken> create_token(std::string_view name, Role role,
-                                             std::optional<Id> depot_id, const TokenHash& hash,
-                                             std::chrono::sys_seconds at) = 0;
-  // not_found for an unknown hash; a revoked token is returned with revoked_at.
+  // API tokens. Only the hash is stored. `expires_at` (nullopt: never)
+  // must lie after `at` (invalid, field "expires_at", otherwise).
+  virtual StoreResult<ApiToken> create_token(
+      std::string_view name, Role role, std::optional<Id> depot_id, const TokenHash& hash,
+      std::chrono::sys_seconds at,
+      std::optional<std::chrono::sys_seconds> expires_at = std::nullopt) = 0;
+  // not_found for an unknown hash; a revoked or expired token is returned
+  // as it is (revoked_at, expires_at): the caller decides.
   virtual StoreResult<ApiToken> find_token(const TokenHash& hash) = 0;
   virtual StoreResult<Page<ApiToken>> list_tokens(const PageRequest& page) = 0;
   virtual StoreResult<ApiToken> revoke_token(Id id, std::chrono::sys_seconds at) = 0;

@@ -135,3 +135,60 @@ TEST_CASE("peer_address drops the port") {
 }
 
 }  // namespace pbfleet::api
+
+namespace pbfleet::api {
+
+TEST_CASE("a token made with expires_in_days works until then and answers 401 'expired' after") {
+  testing::ApiFixture f;
+  auto made = f.post("/v1/tokens", {{"name", "night shift"}, {"role", "crew"}, {"expires_in_days", 7}});
+  REQUIRE(made.status == 201);
+  const auto body = testing::body_of(made);
+  CHECK(body["expires_at"] == "2026-01-17T12:00:00Z");  // test_now() + 7 days
+  const std::string raw = body["token"];
+
+  auto as_shift = [&] {
+    http::Request r;
+    r.method = "GET";
+    r.target = "/v1/depots";
+    r.peer = "127.0.0.9:5000";
+    r.headers["authorization"] = "Bearer " + raw;
+    return f.api().handle(r);
+  };
+  CHECK(as_shift().status == 200);  // now cached by the authenticator
+  f.clock().at = testing::test_now() + std::chrono::days{7} - std::chrono::seconds{1};
+  CHECK(as_shift().status == 200);
+  f.clock().at = testing::test_now() + std::chrono::days{7};
+  const auto refused = as_shift();
+  CHECK(refused.status == 401);
+  CHECK(slug_of(refused) == "unauthorized");
+  CHECK(testing::body_of(refused)["detail"].get<std::string>().find("expired") != std::string::npos);
+  CHECK(refused.body.find(raw) == std::string::npos);
+
+  auto listed = testing::body_of(f.get("/v1/tokens?limit=1000"));
+  int with_expiry = 0;
+  for (const auto& t : listed["items"]) {
+    REQUIRE(t.contains("expires_at"));
+    with_expiry += t["expires_at"].is_string();
+  }
+  CHECK(with_expiry == 1);
+}
+
+TEST_CASE("expires_in_days outside 1..3650 or not a whole number is a 422 naming the field and range") {
+  testing::ApiFixture f;
+  for (const nlohmann::json& days : {nlohmann::json(0), nlohmann::json(3651), nlohmann::json(-5),
+                                     nlohmann::json(1.5), nlohmann::json("30")}) {
+    CAPTURE(days.dump());
+    auto r = f.post("/v1/tokens", {{"name", "x"}, {"role", "crew"}, {"expires_in_days", days}});
+    CHECK(r.status == 422);
+    CHECK(slug_of(r) == "validation-failed");
+    const auto errors = testing::body_of(r)["errors"];
+    REQUIRE(errors.size() == 1);
+    CHECK(errors[0]["field"] == "/expires_in_days");
+    CHECK(errors[0]["allowed"] == "1 to 3650");
+  }
+  const auto listed = testing::body_of(f.get("/v1/tokens?limit=1000"))["items"];
+  for (const auto& t : listed) CHECK(t["name"] != "x");
+  CHECK(f.post("/v1/tokens", {{"name", "y"}, {"role", "crew"}, {"expires_in_days", 3650}}).status == 201);
+}
+
+}  // namespace pbfleet::api

@@ -46,6 +46,8 @@ class ApiFixture {
   }
 
   storage::Store& store() { return *store_; }
+  // The fixed clock the Api reads; tests move it to let time pass.
+  FixedClock& clock() { return clock_; }
   Api& api() { return *api_; }
   const std::string& token(const std::string& who) const { return tokens_.at(who); }
   storage::Id token_id(const std::string& who) const { return token_ids_.at(who); }

@@ -1,6 +1,6 @@
 // RELIABILITY-TESTS row 11: every route x {no token, bad token, revoked
-// token, crew, technician, manager, admin} answers as the documented matrix
-// says. The matrix is the `x-roles` of each operation in the OpenAPI
+// token, expired token, crew, technician, manager, admin} answers as the
+// documented matrix says. The matrix is the `x-roles` of each operation in the OpenAPI
 // document the daemon serves, so a new route joins the test by itself and
 // the document cannot drift from the code.
 //
@@ -8,11 +8,12 @@
 // otherwise no, bad or revoked token -> 401 unauthorized; a role outside
 // x-roles -> 403 forbidden; a listed role -> the handler ran (2xx, or 4xx
 // other than 401/403/429 for deliberately minimal bodies), never 5xx.
-// Tokens do not expire in this version (only revocation), so "expired" is
-// the revoked column.
+// The expired token is an admin token made through the API with a
+// one-day lifetime, then moved into the past in the database file (the
+// daemon reads the wall clock, so time cannot be made to pass otherwise).
 //
 // Bad tokens are throttled per client address (20 per minute), so each
-// route's bad and revoked cells come from their own loopback address.
+// route's bad, revoked and expired cells come from their own loopback address.
 #include <doctest/doctest.h>
 
 #include <random>
@@ -24,8 +25,12 @@ namespace {
 
 using nlohmann::json;
 
-const std::vector<std::string> kIdentities{"none", "bad", "revoked", "crew",
-                                           "technician", "manager", "admin"};
+const std::vector<std::string> kIdentities{"none",       "bad",     "revoked", "expired",
+                                           "crew",       "technician", "manager", "admin"};
+
+bool refused_identity(const std::string& who) {
+  return who == "none" || who == "bad" || who == "revoked" || who == "expired";
+}
 
 struct Sample {
   std::string path;
@@ -93,6 +98,20 @@ TEST_CASE("every route answers every identity as the documented role matrix says
   auto [revoked_id, revoked] = fleet.make_token("admin");
   REQUIRE(fleet.client("admin").send("DELETE", "/v1/tokens/" + std::to_string(revoked_id)).status == 200);
   const std::string bad = random_hex(32);
+  auto expired_id = 0LL;
+  std::string expired;
+  {
+    HttpClient admin = fleet.client("admin");
+    auto made = admin.post("/v1/tokens", {{"name", "expired admin"}, {"role", "admin"}, {"expires_in_days", 1}});
+    REQUIRE(made.status == 201);
+    expired_id = made.json()["id"].get<long long>();
+    expired = made.json()["token"].get<std::string>();
+    SqliteProbe db(fleet.db());
+    db.column("UPDATE api_tokens SET created_at = created_at - 3 * 86400,"
+              " expires_at = created_at - 2 * 86400 WHERE id = " + std::to_string(expired_id));
+    REQUIRE(db.integer("SELECT count(*) FROM api_tokens WHERE expires_at < unixepoch() AND id = " +
+                       std::to_string(expired_id)) == 1);
+  }
 
   const json doc = fleet.client("").get("/openapi.json").json();
   REQUIRE(doc.contains("paths"));
@@ -113,9 +132,9 @@ TEST_CASE("every route answers every identity as the documented role matrix says
         CAPTURE(pattern);
         CAPTURE(who);
         HttpClient client = fleet.client("");
-        if (who == "bad" || who == "revoked") {
+        if (who == "bad" || who == "revoked" || who == "expired") {
           client.set_source_address(source);
-          client.set_token(who == "bad" ? bad : revoked);
+          client.set_token(who == "bad" ? bad : who == "revoked" ? revoked : expired);
         } else if (who != "none") {
           client.set_token(fleet.token(who));
         }
@@ -125,8 +144,10 @@ TEST_CASE("every route answers every identity as the documented role matrix says
         const bool listed = std::find(roles.begin(), roles.end(), who) != roles.end();
         if (is_public) {
           CHECK_MESSAGE(reply.status == 200, reply.body);
-        } else if (who == "none" || who == "bad" || who == "revoked") {
+        } else if (refused_identity(who)) {
           CHECK(problem_mismatch(reply, 401, "unauthorized") == "");
+          if (who == "expired") CHECK(reply.json()["detail"].get<std::string>().find("expired") != std::string::npos);
+          if (who != "none") CHECK(reply.body.find(who == "bad" ? bad : who == "revoked" ? revoked : expired) == std::string::npos);
         } else if (!listed) {
           CHECK(problem_mismatch(reply, 403, "forbidden") == "");
         } else if (s.minimal) {

@@ -129,6 +129,32 @@ TEST_CASE("a migration killed mid-way leaves the old version and runs again on t
   CHECK(has_table(db, "added_later"));
 }
 
+TEST_CASE("a version-1 database gains token expiry (0002) and keeps its tokens as never expiring") {
+  TempDir dir;
+  const auto file = dir.file("v1.db");
+  {
+    Db db(file, Db::Mode::read_write_create);
+    db.exec("PRAGMA journal_mode = WAL");
+    const std::vector<Migration> first{embedded_migrations().front()};
+    REQUIRE(migrate(db, first, kNow) == 1);
+    db.exec("INSERT INTO api_tokens (name, role, hash, created_at)"
+            " VALUES ('old admin', 'admin', zeroblob(32), 100)");
+  }
+  CHECK(embedded_migrations().at(1).name == "0002_token_expiry.sql");
+  auto store = testing::open_store(file);
+  const auto tokens = store->list_tokens({}).value().items;
+  REQUIRE(tokens.size() == 1);
+  CHECK(tokens[0].name == "old admin");
+  CHECK_FALSE(tokens[0].expires_at.has_value());
+  store.reset();
+  Db db(file, Db::Mode::read_only);
+  CHECK(schema_version(db) >= 2);
+  CHECK(db.query_text("SELECT name FROM schema_version WHERE version = 2") ==
+        "0002_token_expiry.sql");
+  CHECK(db.query_int("SELECT count(*) FROM pragma_table_info('api_tokens')"
+                     " WHERE name = 'expires_at'") == 1);
+}
+
 TEST_CASE("the store refuses to open where WAL journaling cannot be set") {
   // An in-memory database cannot use a write-ahead log: journal_mode reads
   // back "memory", so the store must refuse rather than run undurable.

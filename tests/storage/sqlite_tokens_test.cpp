@@ -87,3 +87,32 @@ TEST_CASE("tokens list in pages") {
 }
 
 }  // namespace pbfleet::storage
+
+namespace pbfleet::storage {
+
+TEST_CASE("a token keeps its expiry, and one expiring before it was made is refused") {
+  Fleet f;
+  const auto hash = hash_token(new_raw_token());
+  const auto made = f.store->create_token("shift", Role::crew, std::nullopt, hash, at(1), at(8));
+  REQUIRE(made.ok());
+  CHECK(made->expires_at == at(8));
+  CHECK(f.store->find_token(hash)->expires_at == at(8));
+  CHECK(expired(*made, at(8)));
+  CHECK(expired(*made, at(9)));
+  CHECK_FALSE(expired(*made, at(8) - std::chrono::seconds{1}));
+
+  const auto forever = f.store->create_token("desk", Role::manager, std::nullopt,
+                                             hash_token(new_raw_token()), at(1));
+  REQUIRE(forever.ok());
+  CHECK_FALSE(forever->expires_at.has_value());
+  CHECK_FALSE(expired(*forever, at(10000)));
+
+  const auto backwards = f.store->create_token("x", Role::crew, std::nullopt,
+                                               hash_token(new_raw_token()), at(2), at(2));
+  REQUIRE_FALSE(backwards.ok());
+  CHECK(backwards.error().code == StoreErrc::invalid);
+  CHECK(backwards.error().field == "expires_at");
+  CHECK(f.store->list_tokens({}).value().items.size() == 2);
+}
+
+}  // namespace pbfleet::storage

@@ -1,4 +1,5 @@
-// /v1/tokens (admin): create (the raw token is shown once), list, revoke.
+// /v1/tokens (admin): create (the raw token is shown once, optionally with
+// a lifetime in days), list, revoke.
 #include "server/api/handlers/common.hpp"
 #include "server/api/handlers/handlers.hpp"
 #include "server/storage/tokens.hpp"
@@ -11,6 +12,7 @@ struct TokenRequest {
   std::string name;
   storage::Role role = storage::Role::crew;
   std::optional<storage::Id> depot_id;
+  std::optional<std::int64_t> expires_in_days;
 };
 
 }  // namespace
@@ -28,13 +30,18 @@ http::Response create_token(const Call& call) {
     if (auto v = in.choice("role", true, {"crew", "technician", "manager", "admin"}))
       t.role = *storage::parse_role(*v);
     if (auto v = in.integer("depot_id", false, 1, INT64_MAX)) t.depot_id = *v;
+    if (auto v = in.integer("expires_in_days", false, kMinTokenLifetimeDays, kMaxTokenLifetimeDays))
+      t.expires_in_days = *v;
     in.finish();
   });
   if (auto* refused = std::get_if<http::Response>(&request)) return std::move(*refused);
   const auto& t = std::get<TokenRequest>(request);
   const std::string raw = storage::new_raw_token();
+  const auto now = call.ctx.clock.now();
+  std::optional<std::chrono::sys_seconds> expires_at;
+  if (t.expires_in_days) expires_at = now + std::chrono::days{*t.expires_in_days};
   auto created = call.ctx.store.create_token(t.name, t.role, t.depot_id, storage::hash_token(raw),
-                                             call.ctx.clock.now());
+                                             now, expires_at);
   if (!created) return store_problem(created.error());
   auto body = to_json(created.value());
   body["token"] = raw;  // shown once; only its hash is kept

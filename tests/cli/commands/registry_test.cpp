@@ -93,3 +93,16 @@ TEST_CASE("a new token is printed once on stdout, with its note on stderr") {
   CHECK(term.err.str().find("shown once") != std::string::npos);
   CHECK(term.run({"token", "add", "x", "--role", "wizard"}, seams(server)) == kExitUsage);
 }
+
+TEST_CASE("token add --expires-in sends expires_in_days and refuses a lifetime outside 1..3650") {
+  testing::FakeServer server([](const HttpRequest&) {
+    return testing::json_response(201, R"({"id":5,"token":"tok-x","expires_at":"2026-04-10T12:00:00Z"})");
+  });
+  testing::Terminal term;
+  REQUIRE(term.run({"token", "add", "Valley crew", "--role", "crew", "--expires-in", "90"}, seams(server)) == 0);
+  CHECK(Json::parse(server.requests.at(0).body)["expires_in_days"] == 90);
+  CHECK(term.err.str().find("expires 2026-04-10T12:00:00Z") != std::string::npos);
+  CHECK(term.run({"token", "add", "x", "--role", "crew", "--expires-in", "0"}, seams(server)) == kExitUsage);
+  CHECK(term.run({"token", "add", "x", "--role", "crew", "--expires-in", "3651"}, seams(server)) == kExitUsage);
+  CHECK(server.requests.size() == 1);
+}
