@@ -124,7 +124,7 @@ int main(int argc, char** argv) {
 
   std::error_code ec;
   std::filesystem::create_directories(config->db.parent_path(), ec);
-  auto store = storage::open_sqlite_store({.file = config->db});
+  auto store = storage::open_sqlite_store({.file = config->db, .max_size_bytes = config->max_db_bytes});
   if (!store) return fail(kExitFailure, "cannot open database: " + store.error().detail);
 
   if (*create) return print_new_token(*store.value(), token);

@@ -89,7 +89,7 @@ const std::vector<std::string>& config_keys() {
       "log_level",        "backup_dir",     "body_limit_bytes",
       "header_limit_bytes", "header_timeout_ms", "body_timeout_ms",
       "write_timeout_ms", "max_connections", "io_threads",
-      "worker_threads"};
+      "worker_threads",   "max_db_bytes"};
   return kKeys;
 }
 
@@ -153,6 +153,8 @@ models::Result<Config> make_config(const Settings& s) {
   }
   if (auto r = apply_paths(s, c); !r) return r.error();
   if (auto r = apply_limits(s, c.server); !r) return r.error();
+  if (auto r = read_number<std::uint64_t>(s, "max_db_bytes", 0, std::uint64_t{1} << 50, c.max_db_bytes); !r)
+    return r.error();
   return c;
 }
 

@@ -16,6 +16,9 @@
 //   max_connections     default 512
 //   io_threads          default 2
 //   worker_threads      default 8
+//   max_db_bytes        cap on the database file size, 0 = none (default);
+//                       a write that would pass it gets 507 storage-full and
+//                       stores nothing, exactly as on a full disk
 #pragma once
 
 #include <cstdint>
@@ -36,6 +39,7 @@ struct Config {
   std::filesystem::path db;          // resolved database file
   std::filesystem::path backup_dir;  // resolved backup folder
   std::string log_level = "info";
+  std::uint64_t max_db_bytes = 0;    // 0 = no cap (see storage SqliteOptions)
   http::ServerOptions server;        // limits and threads
 };
 
