@@ -1,0 +1,161 @@
+// RELIABILITY-TESTS row 23: pbfleetd killed with SIGKILL while it migrates
+// a version-1 database to the current schema. After every kill the file is
+// at version 1 (no expires_at column) or fully migrated, never in between,
+// and passes integrity_check; a normal start then finishes the migration.
+//
+// The version-1 file is made by letting the daemon create a current
+// database with data, then undoing migration 0002 (its only change is the
+// api_tokens.expires_at column). Kill times are spread at random over the
+// daemon's measured start-up time, so runs land before, during and after
+// the migration. (tests/storage/sqlite_migrate_test.cpp kills a process
+// inside an open migration transaction deterministically.)
+#include <doctest/doctest.h>
+
+#include <fcntl.h>
+#include <signal.h>
+#include <sys/prctl.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <filesystem>
+#include <random>
+#include <thread>
+
+#include "tests/support/live_fleet.hpp"
+
+namespace pbfleet::testing {
+namespace {
+
+using namespace std::chrono_literals;
+
+// Starts pbfleetd on `db` (127.0.0.1, ephemeral port); its output goes to `log`.
+pid_t spawn_daemon(const std::filesystem::path& db, const std::filesystem::path& port_file,
+                   const std::filesystem::path& log) {
+  std::vector<std::string> args{ServerProcess::executable().string(), "--listen", "127.0.0.1:0",
+                                "--db", db.string(), "--log-level", "warn", "--port-file",
+                                port_file.string()};
+  std::vector<char*> argv;
+  for (auto& a : args) argv.push_back(a.data());
+  argv.push_back(nullptr);
+  const pid_t parent = ::getpid();
+  const pid_t pid = ::fork();
+  REQUIRE(pid >= 0);
+  if (pid == 0) {
+    ::prctl(PR_SET_PDEATHSIG, SIGKILL);
+    if (::getppid() != parent) ::_exit(126);
+    const int fd = ::open(log.c_str(), O_WRONLY | O_CREAT | O_APPEND, 0600);
+    if (fd >= 0) {
+      ::dup2(fd, 1);
+      ::dup2(fd, 2);
+    }
+    ::execv(argv[0], argv.data());
+    ::_exit(127);
+  }
+  return pid;
+}
+
+// SIGKILL and reap; true when it died of the signal (it had not exited).
+bool kill_and_reap(pid_t pid) {
+  ::kill(pid, SIGKILL);
+  int status = 0;
+  ::waitpid(pid, &status, 0);
+  return WIFSIGNALED(status);
+}
+
+// Time from spawn until the daemon has written its port file (migrated and listening).
+std::chrono::microseconds startup_time(const std::filesystem::path& db, const TempDir& dir) {
+  const auto port_file = dir / "calibrate.port";
+  const auto start = std::chrono::steady_clock::now();
+  const pid_t pid = spawn_daemon(db, port_file, dir / "calibrate.log");
+  while (!std::filesystem::exists(port_file) && std::chrono::steady_clock::now() - start < 20s)
+    std::this_thread::sleep_for(200us);
+  const auto took = std::chrono::steady_clock::now() - start;
+  kill_and_reap(pid);
+  REQUIRE(std::filesystem::exists(port_file));
+  return std::chrono::duration_cast<std::chrono::microseconds>(took);
+}
+
+struct Shape {
+  std::int64_t version = 0;
+  std::int64_t expiry_column = 0;
+  std::string integrity;
+};
+
+Shape shape_of(const std::filesystem::path& db) {
+  SqliteProbe probe(db);
+  return {probe.integer("SELECT max(version) FROM schema_version"),
+          probe.integer("SELECT count(*) FROM pragma_table_info('api_tokens') WHERE name = 'expires_at'"),
+          probe.integrity()};
+}
+
+}  // namespace
+
+TEST_CASE("a migration killed at random moments leaves version 1 or the new version, and a restart finishes it") {
+  TempDir dir("pbfleet-migrate");
+  const auto v1 = dir / "v1.db";
+  {
+    // A current database with a fleet and tokens, then migration 0002 undone.
+    LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
+    REQUIRE(fleet.client("crew").post("/v1/readings", good_reading(fleet.serials("North Yard")[0], "m-1", 1)).status == 201);
+    REQUIRE(fleet.server().terminate() == 0);
+    {
+      SqliteProbe probe(fleet.db());
+      REQUIRE(probe.integer("SELECT max(version) FROM schema_version") == 2);
+      probe.column("ALTER TABLE api_tokens DROP COLUMN expires_at");
+      probe.column("DELETE FROM schema_version WHERE version >= 2");
+      probe.column("PRAGMA wal_checkpoint(TRUNCATE)");
+    }
+    std::filesystem::copy_file(fleet.db(), v1);
+  }
+  const Shape old = shape_of(v1);
+  REQUIRE(old.version == 1);
+  REQUIRE(old.expiry_column == 0);
+
+  const auto work = dir / "work.db";
+  std::filesystem::copy_file(v1, work);
+  const auto full = startup_time(work, dir);
+  MESSAGE("start-up with migration takes " << full.count() << " us");
+  std::mt19937 rng(std::random_device{}());
+  std::uniform_int_distribution<long> delay_us(0, full.count() + full.count() / 5);
+
+  int at_old = 0, at_new = 0, finished_first = 0;
+  for (int run = 0; run < 20; ++run) {
+    CAPTURE(run);
+    std::filesystem::remove(work);
+    std::filesystem::remove(work.string() + "-wal");
+    std::filesystem::remove(work.string() + "-shm");
+    std::filesystem::copy_file(v1, work);
+    const auto delay = std::chrono::microseconds{delay_us(rng)};
+    const pid_t pid = spawn_daemon(work, dir / "run.port", dir / "run.log");
+    std::this_thread::sleep_for(delay);
+    finished_first += !kill_and_reap(pid);
+    const Shape after = shape_of(work);
+    CAPTURE(after.version);
+    CAPTURE(after.expiry_column);
+    CHECK(after.integrity == "ok");
+    const bool is_old = after.version == 1 && after.expiry_column == 0;
+    const bool is_new = after.version == 2 && after.expiry_column == 1;
+    CHECK((is_old || is_new));
+    at_old += is_old;
+    at_new += is_new;
+    // A normal start finishes the migration and serves the old data.
+    ServerConfig config;
+    config.db = work;
+    config.log = dir / "restart.log";
+    config.log_level = "warn";
+    ServerProcess restarted(config);
+    CHECK(restarted.terminate() == 0);
+    const Shape done = shape_of(work);
+    CHECK(done.version == 2);
+    CHECK(done.expiry_column == 1);
+    SqliteProbe probe(work);
+    CHECK(probe.integer("SELECT count(*) FROM readings WHERE reading_id = 'm-1'") == 1);
+    CHECK(probe.integer("SELECT count(*) FROM api_tokens WHERE expires_at IS NOT NULL") == 0);
+  }
+  MESSAGE("kills left " << at_old << " at version 1 and " << at_new << " at version 2");
+  CHECK(at_old + at_new == 20);
+  CHECK(finished_first == 0);
+}
+
+}  // namespace pbfleet::testing
