@@ -108,6 +108,12 @@ void Api::dispatch(http::Request request, http::Reply reply) {
                                              " " + std::string(m.route->pattern)));
     return;
   }
+  if (!accepts(request.header("accept"), produced_types(*m.route))) {
+    done(problem(ProblemKind::not_acceptable,
+                 "this route answers " + std::string(produced_types(*m.route)) +
+                     "; the Accept header admits none of them"));
+    return;
+  }
   Call call{request, target, std::move(m.params), caller ? &*caller : nullptr, impl_->context};
   try {
     if (m.route->async) {

@@ -94,6 +94,58 @@ http::Response json_response(int status, const nlohmann::json& body) {
   return r;
 }
 
+namespace {
+
+std::string_view trimmed(std::string_view s) {
+  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
+  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
+  return s;
+}
+
+// Calls `each(item)` for every comma-separated, trimmed, non-empty item.
+template <class F>
+void for_each_item(std::string_view list, F&& each) {
+  while (!list.empty()) {
+    const auto comma = list.find(',');
+    const auto item = trimmed(list.substr(0, comma));
+    if (!item.empty()) each(item);
+    if (comma == std::string_view::npos) break;
+    list.remove_prefix(comma + 1);
+  }
+}
+
+// True when a media range ("text/*;q=0.5") has q=0.
+bool refused_by_quality(std::string_view range) {
+  for (auto semi = range.find(';'); semi != std::string_view::npos; semi = range.find(';')) {
+    range.remove_prefix(semi + 1);
+    const auto param = trimmed(range.substr(0, range.find(';')));
+    if (param.size() >= 2 && (param[0] == 'q' || param[0] == 'Q') && param[1] == '=') {
+      const auto value = param.substr(2);
+      return !value.empty() && value.find_first_not_of("0.") == std::string_view::npos;
+    }
+  }
+  return false;
+}
+
+bool range_matches(std::string_view range, std::string_view type) {
+  const std::string wanted = media_type(range);
+  if (wanted == "*/*" || wanted == type) return true;
+  return wanted.size() > 2 && wanted.ends_with("/*") &&
+         type.starts_with(std::string_view(wanted).substr(0, wanted.size() - 1));
+}
+
+}  // namespace
+
+bool accepts(std::string_view accept, std::string_view produced) {
+  if (trimmed(accept).empty()) return true;
+  bool ok = false;
+  for_each_item(accept, [&](std::string_view range) {
+    if (ok || refused_by_quality(range)) return;
+    for_each_item(produced, [&](std::string_view type) { ok = ok || range_matches(range, type); });
+  });
+  return ok;
+}
+
 bool wants_csv(const http::Request& request) {
   return request.header("accept").find("text/csv") != std::string_view::npos;
 }

@@ -36,6 +36,11 @@ struct Target {
 [[nodiscard]] http::Response json_response(int status, const nlohmann::json& body);
 [[nodiscard]] std::string dump(const nlohmann::json& body);
 
+// True when an Accept header value admits one of `produced` (media types,
+// comma-separated): an absent or empty header admits anything; ranges
+// "*/*" and "type/*" match; a range with q=0 admits nothing.
+[[nodiscard]] bool accepts(std::string_view accept, std::string_view produced);
+
 // True when the client asked for CSV (Accept: text/csv).
 [[nodiscard]] bool wants_csv(const http::Request& request);
 

@@ -2,6 +2,10 @@
 
 namespace pbfleet::api {
 
+std::string_view produced_types(const Route& route) {
+  return route.produces.empty() ? std::string_view("application/json") : route.produces;
+}
+
 namespace {
 
 std::vector<std::string_view> split_path(std::string_view path) {

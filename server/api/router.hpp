@@ -25,7 +25,14 @@ struct Route {
   RoleSet roles;             // kPublic = no token
   SyncHandler sync = nullptr;
   AsyncHandler async = nullptr;
+  // Media types the route answers with, comma-separated; empty means
+  // "application/json". A request whose Accept excludes all of them gets
+  // 406 not-acceptable before the handler runs.
+  std::string_view produces = {};
 };
+
+// The media types a route answers with ("application/json" when unset).
+[[nodiscard]] std::string_view produced_types(const Route& route);
 
 // Every route of the API (routes.cpp).
 std::span<const Route> routes();

@@ -18,11 +18,13 @@ constexpr RoleSet kLoggers = kCrew | kTechnician | kAdmin;
 constexpr RoleSet kRegistrars = kCrew | kManager | kAdmin;
 constexpr RoleSet kFitters = kTechnician | kManager | kAdmin;
 constexpr RoleSet kPlanners = kManager | kAdmin;
+// Reports answer JSON, or CSV for Accept: text/csv.
+constexpr std::string_view kJsonOrCsv = "application/json,text/csv";
 
 constexpr Route kRoutes[] = {
     {"GET", "/healthz", kPublic, &h::healthz},
     {"GET", "/readyz", kPublic, &h::readyz},
-    {"GET", "/metrics", kPublic, &h::metrics},
+    {"GET", "/metrics", kPublic, &h::metrics, nullptr, "text/plain"},
     {"GET", "/openapi.json", kPublic, &h::openapi},
 
     {"GET", "/v1/depots", kReaders, &h::list_depots},
@@ -48,10 +50,10 @@ constexpr Route kRoutes[] = {
 
     {"POST", "/v1/estimate", kReaders, &h::estimate},
 
-    {"GET", "/v1/reports/winter", kPlanners, &h::winter_report},
-    {"GET", "/v1/reports/sulfation", kPlanners, &h::sulfation_report},
-    {"GET", "/v1/reports/replacements", kPlanners, &h::replacement_report},
-    {"GET", "/v1/reports/overdue", kReaders, &h::overdue_report},
+    {"GET", "/v1/reports/winter", kPlanners, &h::winter_report, nullptr, kJsonOrCsv},
+    {"GET", "/v1/reports/sulfation", kPlanners, &h::sulfation_report, nullptr, kJsonOrCsv},
+    {"GET", "/v1/reports/replacements", kPlanners, &h::replacement_report, nullptr, kJsonOrCsv},
+    {"GET", "/v1/reports/overdue", kReaders, &h::overdue_report, nullptr, kJsonOrCsv},
 
     {"GET", "/v1/tokens", kAdmin, &h::list_tokens},
     {"POST", "/v1/tokens", kAdmin, &h::create_token},

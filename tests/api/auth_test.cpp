@@ -192,3 +192,30 @@ TEST_CASE("expires_in_days outside 1..3650 or not a whole number is a 422 naming
 }
 
 }  // namespace pbfleet::api
+
+namespace pbfleet::api {
+
+TEST_CASE("an Accept header excluding every type a route produces gets 406 problem+json") {
+  testing::ApiFixture f;
+  auto with_accept = [&](const std::string& target, const std::string& accept) {
+    http::Request r;
+    r.method = "GET";
+    r.target = target;
+    r.headers["authorization"] = "Bearer " + f.token("manager");
+    r.headers["accept"] = accept;
+    return f.api().handle(r);
+  };
+  const auto refused = with_accept("/v1/depots", "text/html");
+  CHECK(refused.status == 406);
+  CHECK(slug_of(refused) == "not-acceptable");
+  CHECK(refused.content_type == "application/problem+json");
+  CHECK(with_accept("/v1/depots", "text/csv").status == 406);
+  CHECK(with_accept("/v1/depots", "application/json").status == 200);
+  CHECK(with_accept("/v1/depots", "*/*").status == 200);
+  CHECK(with_accept("/v1/reports/overdue", "text/csv").status == 200);
+  CHECK(with_accept("/v1/reports/overdue", "image/png").status == 406);
+  CHECK(with_accept("/metrics", "text/plain").status == 200);
+  CHECK(with_accept("/metrics", "application/xml").status == 406);
+}
+
+}  // namespace pbfleet::api

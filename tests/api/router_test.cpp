@@ -46,3 +46,34 @@ TEST_CASE("every route has exactly one handler") {
 }
 
 }  // namespace pbfleet::api
+
+namespace pbfleet::api {
+
+TEST_CASE("an Accept header admits a route when any of its ranges matches a produced type") {
+  const std::string_view json = "application/json";
+  const std::string_view reports = "application/json,text/csv";
+  CHECK(accepts("", json));
+  CHECK(accepts("*/*", json));
+  CHECK(accepts("application/*", json));
+  CHECK(accepts("text/html, application/json;q=0.9", json));
+  CHECK(accepts("Application/JSON", json));
+  CHECK(accepts("text/csv", reports));
+  CHECK(accepts("text/*", reports));
+  CHECK_FALSE(accepts("text/csv", json));
+  CHECK_FALSE(accepts("text/html", reports));
+  CHECK_FALSE(accepts("image/*, text/html", json));
+  CHECK_FALSE(accepts("application/json;q=0", json));
+  CHECK_FALSE(accepts("application/json; q=0.0, text/html", json));
+  CHECK(accepts("application/json; q=0.01", json));
+  CHECK_FALSE(accepts("application/jsonx", json));
+}
+
+TEST_CASE("only the reports and /metrics produce more than JSON") {
+  std::set<std::string_view> other;
+  for (const auto& route : routes())
+    if (produced_types(route) != "application/json") other.insert(route.pattern);
+  CHECK(other == std::set<std::string_view>{"/metrics", "/v1/reports/winter", "/v1/reports/sulfation",
+                                            "/v1/reports/replacements", "/v1/reports/overdue"});
+}
+
+}  // namespace pbfleet::api
