@@ -89,7 +89,10 @@ TEST_CASE("a batch with bad rows lists every bad field by JSON pointer and store
   CHECK(has(fields, "/2/electrolyte_temp_c"));
   CHECK(has(fields, "/3/taken_at"));
   CHECK(fields.size() == 4);
-  for (const auto& e : body_of(r)["errors"]) CHECK_FALSE(e.value("allowed", "").empty());
+  // The body is held in a local: a range-for over body_of(r)["errors"] would
+  // iterate a reference into a temporary already destroyed (C++20 lifetime).
+  const json body = body_of(r);
+  for (const auto& e : body["errors"]) CHECK_FALSE(e.value("allowed", "").empty());
   CHECK(stored_count(f) == 0);
 }
 
