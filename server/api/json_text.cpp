@@ -1,0 +1,184 @@
+#include "server/api/json_text.hpp"
+
+#include <charconv>
+#include <cmath>
+
+namespace pbfleet::api {
+
+namespace {
+
+constexpr std::string_view kReplacement = "\xEF\xBF\xBD";  // U+FFFD
+
+// How the bytes at the start of `s` read as UTF-8 (RFC 3629: no
+// overlongs, no surrogates, nothing above U+10FFFF): `length` bytes that
+// fit a sequence so far, `complete` when they form a whole character.
+// An ill-formed sequence is replaced by one U+FFFD for its longest
+// fitting prefix (at least one byte), as nlohmann's `replace` does.
+struct Utf8Run {
+  std::size_t length;
+  bool complete;
+};
+
+Utf8Run utf8_run(std::string_view s) {
+  const auto byte = [&](std::size_t i) { return static_cast<unsigned char>(s[i]); };
+  const unsigned char lead = byte(0);
+  std::size_t need = 0;
+  unsigned char low = 0x80, high = 0xBF;  // allowed range of the second byte
+  if (lead >= 0xC2 && lead <= 0xDF) need = 2;
+  else if (lead >= 0xE0 && lead <= 0xEF) need = 3;
+  else if (lead >= 0xF0 && lead <= 0xF4) need = 4;
+  else return {1, false};
+  if (lead == 0xE0) low = 0xA0;   // overlong
+  if (lead == 0xED) high = 0x9F;  // surrogates
+  if (lead == 0xF0) low = 0x90;   // overlong
+  if (lead == 0xF4) high = 0x8F;  // above U+10FFFF
+  std::size_t fit = 1;
+  while (fit < need && fit < s.size()) {
+    const unsigned char b = byte(fit);
+    const bool ok = fit == 1 ? (b >= low && b <= high) : (b & 0xC0) == 0x80;
+    if (!ok) break;
+    ++fit;
+  }
+  return {fit, fit == need};
+}
+
+}  // namespace
+
+void append_json_string(std::string& out, std::string_view text) {
+  static constexpr char kHex[] = "0123456789abcdef";
+  out += '"';
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    if (c >= 0x80) {
+      const Utf8Run run = utf8_run(text.substr(i));
+      if (run.complete) out.append(text.substr(i, run.length));
+      else out += kReplacement;
+      i += run.length;
+      continue;
+    }
+    switch (c) {
+      case '"': out += "\\\""; break;
+      case '\\': out += "\\\\"; break;
+      case '\b': out += "\\b"; break;
+      case '\f': out += "\\f"; break;
+      case '\n': out += "\\n"; break;
+      case '\r': out += "\\r"; break;
+      case '\t': out += "\\t"; break;
+      default:
+        if (c < 0x20) {
+          out += "\\u00";
+          out += kHex[c >> 4];
+          out += kHex[c & 0xF];
+        } else {
+          out += static_cast<char>(c);
+        }
+    }
+    ++i;
+  }
+  out += '"';
+}
+
+void append_json_number(std::string& out, double number) {
+  if (!std::isfinite(number)) {
+    out += "null";
+    return;
+  }
+  char buf[32];
+  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, number);
+  const std::string_view text(buf, static_cast<std::size_t>(end - buf));
+  out += text;
+  if (text.find_first_of(".e") == std::string_view::npos) out += ".0";
+}
+
+void JsonText::separate() {
+  if (need_comma_) out_ += ',';
+}
+
+JsonText& JsonText::begin_object() {
+  separate();
+  out_ += '{';
+  need_comma_ = false;
+  return *this;
+}
+
+JsonText& JsonText::end_object() {
+  out_ += '}';
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::begin_array() {
+  separate();
+  out_ += '[';
+  need_comma_ = false;
+  return *this;
+}
+
+JsonText& JsonText::end_array() {
+  out_ += ']';
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::key(std::string_view name) {
+  separate();
+  append_json_string(out_, name);
+  out_ += ':';
+  need_comma_ = false;
+  return *this;
+}
+
+JsonText& JsonText::value(std::string_view text) {
+  separate();
+  append_json_string(out_, text);
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::value(double number) {
+  separate();
+  append_json_number(out_, number);
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::value(std::int64_t number) {
+  separate();
+  char buf[24];
+  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, number);
+  out_.append(buf, end);
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::value(std::uint64_t number) {
+  separate();
+  char buf[24];
+  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, number);
+  out_.append(buf, end);
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::value(bool flag) {
+  separate();
+  out_ += flag ? "true" : "false";
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::null() {
+  separate();
+  out_ += "null";
+  need_comma_ = true;
+  return *this;
+}
+
+JsonText& JsonText::value(const std::vector<double>& numbers) {
+  begin_array();
+  for (double n : numbers) value(n);
+  return end_array();
+}
+
+}  // namespace pbfleet::api
