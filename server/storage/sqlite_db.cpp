@@ -56,7 +56,10 @@ Db::Db(const std::filesystem::path& file, Mode mode) {
   sqlite3_extended_result_codes(db_, 1);
 }
 
-Db::~Db() { sqlite3_close_v2(db_); }
+Db::~Db() {
+  for (auto& [sql, stmt] : idle_) sqlite3_finalize(stmt);
+  sqlite3_close_v2(db_);
+}
 
 void Db::check(int rc, std::string_view what) const {
   if (rc == SQLITE_OK || rc == SQLITE_ROW || rc == SQLITE_DONE) return;
@@ -70,6 +73,11 @@ void Db::exec(std::string_view sql) {
 }
 
 Statement Db::prepare(std::string_view sql) {
+  if (auto it = idle_.find(std::string(sql)); it != idle_.end()) {
+    sqlite3_stmt* kept = it->second;
+    idle_.erase(it);
+    return Statement(*this, kept);
+  }
   sqlite3_stmt* stmt = nullptr;
   check(sqlite3_prepare_v3(db_, sql.data(), static_cast<int>(sql.size()), SQLITE_PREPARE_PERSISTENT,
                            &stmt, nullptr),
@@ -89,6 +97,21 @@ std::string Db::query_text(std::string_view sql) {
   return s.text_at(0);
 }
 
+void Db::recycle(sqlite3_stmt* stmt) noexcept {
+  sqlite3_reset(stmt);
+  sqlite3_clear_bindings(stmt);
+  const char* text = sqlite3_sql(stmt);
+  if (text == nullptr || idle_.size() >= kMaxIdleStatements) {
+    sqlite3_finalize(stmt);
+    return;
+  }
+  try {
+    if (!idle_.try_emplace(text, stmt).second) sqlite3_finalize(stmt);
+  } catch (...) {  // out of memory: just do not keep it
+    sqlite3_finalize(stmt);
+  }
+}
+
 std::int64_t Db::last_insert_id() const { return sqlite3_last_insert_rowid(db_); }
 int Db::changes() const { return sqlite3_changes(db_); }
 bool Db::in_transaction() const { return sqlite3_get_autocommit(db_) == 0; }
@@ -96,7 +119,9 @@ bool Db::in_transaction() const { return sqlite3_get_autocommit(db_) == 0; }
 // ---- Statement --------------------------------------------------------------
 
 Statement::Statement(Db& db, sqlite3_stmt* stmt) : db_(&db), stmt_(stmt) {}
-Statement::~Statement() { sqlite3_finalize(stmt_); }
+Statement::~Statement() {
+  if (stmt_) db_->recycle(stmt_);
+}
 Statement::Statement(Statement&& other) noexcept
     : db_(other.db_), stmt_(std::exchange(other.stmt_, nullptr)) {}
 
@@ -151,6 +176,12 @@ std::string Statement::text_at(int column) const {
   const int size = sqlite3_column_bytes(stmt_, column);
   return text ? std::string(reinterpret_cast<const char*>(text), static_cast<std::size_t>(size))
               : std::string();
+}
+std::string_view Statement::text_view_at(int column) const {
+  const auto* text = sqlite3_column_text(stmt_, column);
+  const int size = sqlite3_column_bytes(stmt_, column);
+  return text ? std::string_view(reinterpret_cast<const char*>(text), static_cast<std::size_t>(size))
+              : std::string_view();
 }
 std::vector<unsigned char> Statement::blob_at(int column) const {
   const auto* data = static_cast<const unsigned char*>(sqlite3_column_blob(stmt_, column));

@@ -17,6 +17,7 @@
 #include <stdexcept>
 #include <string>
 #include <string_view>
+#include <unordered_map>
 #include <vector>
 
 #include "server/storage/store.hpp"
@@ -51,6 +52,10 @@ class Db {
 
   // Runs one or more statements with no results.
   void exec(std::string_view sql);
+  // A prepared statement for `sql`. Statements are kept when their
+  // Statement goes away (reset, bindings cleared) and handed out again for
+  // the same text, so a query run on every request is compiled once per
+  // connection.
   Statement prepare(std::string_view sql);
   // Integer or text result of a one-value query, e.g. "PRAGMA synchronous".
   std::int64_t query_int(std::string_view sql);
@@ -63,7 +68,14 @@ class Db {
   void check(int rc, std::string_view what) const;
 
  private:
+  friend class Statement;
+  // Takes back a statement no longer in use: kept for its SQL text, or
+  // finalized when one is kept already or the cache is full.
+  void recycle(sqlite3_stmt* stmt) noexcept;
+
+  static constexpr std::size_t kMaxIdleStatements = 64;
   sqlite3* db_ = nullptr;
+  std::unordered_map<std::string, sqlite3_stmt*> idle_;
 };
 
 // A prepared statement. bind() indexes are 1-based as in SQL ("?1").
@@ -98,6 +110,8 @@ class Statement {
   std::int64_t int_at(int column) const;
   double real_at(int column) const;
   std::string text_at(int column) const;
+  // The text without a copy; valid until the next step() or reset().
+  std::string_view text_view_at(int column) const;
   std::vector<unsigned char> blob_at(int column) const;
   std::optional<std::int64_t> opt_int_at(int column) const;
   std::optional<double> opt_real_at(int column) const;

@@ -117,7 +117,7 @@ std::vector<Battery> batteries_matching(Db& db, const BatteryFilter& f) {
 // ---- depots -------------------------------------------------------------------
 
 StoreResult<Depot> SqliteStore::create_depot(const Depot& d) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     auto s = db.prepare("INSERT INTO depots (name, time_zone, design_low_c) VALUES (?1, ?2, ?3)");
     s.bind(1, d.name).bind(2, d.time_zone).bind(3, d.design_low_c.value);
     run_unique(s, "name", "a depot named '" + d.name + "' already exists");
@@ -138,7 +138,7 @@ StoreResult<Page<Depot>> SqliteStore::list_depots(const PageRequest& page) {
 }
 
 StoreResult<Depot> SqliteStore::update_depot(const Depot& d) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     depot_by_id(db, d.id);
     auto s =
         db.prepare("UPDATE depots SET name = ?2, time_zone = ?3, design_low_c = ?4 WHERE id = ?1");
@@ -151,7 +151,7 @@ StoreResult<Depot> SqliteStore::update_depot(const Depot& d) {
 // ---- vehicles -----------------------------------------------------------------
 
 StoreResult<Vehicle> SqliteStore::create_vehicle(const Vehicle& v) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     require_depot(db, v.depot_id);
     auto s = db.prepare(
         "INSERT INTO vehicles (code, depot_id, engine, displacement_l, required_cca_a)"
@@ -179,7 +179,7 @@ StoreResult<Page<Vehicle>> SqliteStore::list_vehicles(const VehicleFilter& filte
 }
 
 StoreResult<Vehicle> SqliteStore::update_vehicle(const Vehicle& v) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     vehicle_by_id(db, v.id);
     require_depot(db, v.depot_id);
     auto s = db.prepare(
@@ -196,7 +196,7 @@ StoreResult<Vehicle> SqliteStore::update_vehicle(const Vehicle& v) {
 // ---- batteries ----------------------------------------------------------------
 
 StoreResult<Battery> SqliteStore::create_battery(const Battery& b, sys_seconds at) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     if (b.vehicle_id) require_vehicle(db, *b.vehicle_id);
     auto s = db.prepare(
         "INSERT INTO batteries (serial, chemistry, nominal_v, cells, rated_cca_a,"
@@ -212,7 +212,21 @@ StoreResult<Battery> SqliteStore::create_battery(const Battery& b, sys_seconds a
 }
 
 StoreResult<Battery> SqliteStore::get_battery(std::string_view serial) {
-  return read([&](Db& db) { return battery_by_serial(db, serial); });
+  const std::uint64_t version = fleet_version_.load(std::memory_order_acquire);
+  std::string key(serial);
+  {
+    std::lock_guard lock(battery_cache_mutex_);
+    if (auto it = battery_cache_.find(key);
+        it != battery_cache_.end() && it->second.fleet_version == version)
+      return it->second.battery;
+  }
+  auto found = read([&](Db& db) { return battery_by_serial(db, serial); });
+  if (found) {
+    std::lock_guard lock(battery_cache_mutex_);
+    if (battery_cache_.size() >= kMaxCachedBatteries) battery_cache_.clear();
+    battery_cache_.insert_or_assign(std::move(key), CachedBattery{*found, version});
+  }
+  return found;
 }
 
 StoreResult<Page<Battery>> SqliteStore::list_batteries(const BatteryFilter& f,
@@ -230,7 +244,7 @@ StoreResult<Page<Battery>> SqliteStore::list_batteries(const BatteryFilter& f,
 }
 
 StoreResult<Battery> SqliteStore::update_battery(const Battery& b) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     battery_by_serial(db, b.serial);
     auto s = db.prepare(
         "UPDATE batteries SET chemistry = ?2, nominal_v = ?3, cells = ?4, rated_cca_a = ?5,"
@@ -245,7 +259,7 @@ StoreResult<Battery> SqliteStore::update_battery(const Battery& b) {
 
 StoreResult<Battery> SqliteStore::fit_battery(std::string_view serial, Id vehicle_id,
                                               sys_seconds at) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     const Battery b = require_in_service(db, serial);
     require_vehicle(db, vehicle_id);
     db.prepare("UPDATE batteries SET vehicle_id = ?2 WHERE id = ?1")
@@ -259,7 +273,7 @@ StoreResult<Battery> SqliteStore::fit_battery(std::string_view serial, Id vehicl
 
 StoreResult<Battery> SqliteStore::retire_battery(std::string_view serial, std::string_view reason,
                                                  sys_seconds at) {
-  return write([&](Db& db) {
+  return write_fleet([&](Db& db) {
     const Battery b = require_in_service(db, serial);
     db.prepare(
           "UPDATE batteries SET status = 'retired', retired_at = ?2, retire_reason = ?3,"

@@ -20,7 +20,7 @@ constexpr std::string_view kInsertReading =
     " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h, load_test_a,"
     " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash)"
     " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, "
-    "?19)";
+    "?19) ON CONFLICT (reading_id) DO NOTHING";
 
 // A reading id for a reading the client sent without one: 96 random bits.
 std::string assigned_reading_id() {
@@ -49,7 +49,8 @@ void bind_temperature(Statement& s, int index,
 // The prepared statements of one write transaction, reused for every row.
 struct ReadingStatements {
   explicit ReadingStatements(Db& db)
-      : battery(db.prepare("SELECT id FROM batteries WHERE serial = ?1")),
+      : db(db),
+        battery(db.prepare("SELECT id FROM batteries WHERE serial = ?1")),
         existing(db.prepare("SELECT id, content_hash FROM readings WHERE reading_id = ?1")),
         insert(db.prepare(kInsertReading)),
         original(db.prepare(std::string(kReadingSelect) + " WHERE r.id = ?1")) {}
@@ -65,7 +66,9 @@ struct ReadingStatements {
     return id;
   }
 
-  void insert_row(const ReadingInput& r, Id battery_id, sys_seconds now, const ContentHash& hash) {
+  // Inserts the row; false (and nothing written) when its reading_id is
+  // stored already, so a new reading costs one index probe, not two.
+  bool insert_row(const ReadingInput& r, Id battery_id, sys_seconds now, const ContentHash& hash) {
     Statement& s = insert;
     s.reset();
     s.bind(1, r.reading_id).bind(2, battery_id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
@@ -77,6 +80,7 @@ struct ReadingStatements {
     s.bind(17, r.after_charge ? 1 : 0).bind(18, r.water_added ? 1 : 0);
     s.bind_blob(19, hash.data(), hash.size());
     s.run();
+    return db.changes() == 1;
   }
 
   StoredReading read_original(Id id) {
@@ -87,6 +91,7 @@ struct ReadingStatements {
     return r;
   }
 
+  Db& db;
   Statement battery;
   Statement existing;
   Statement insert;
@@ -153,6 +158,20 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
       out.replayed.push_back(true);
       continue;
     }
+    // A clean batch so far inserts at once; an existing reading_id makes
+    // the insert a no-op and falls through to the replay check. Once the
+    // batch has problems it will be undone, so rows are only checked.
+    if (out.problems.empty() && st.insert_row(input, *battery_id, now, hash)) {
+      StoredReading stored;
+      static_cast<ReadingInput&>(stored) = std::move(input);
+      stored.id = db.last_insert_id();
+      stored.battery_id = *battery_id;
+      stored.received_at = now;
+      seen.emplace(stored.reading_id, SeenInBatch{out.readings.size(), hash});
+      out.readings.push_back(std::move(stored));
+      out.replayed.push_back(false);
+      continue;
+    }
     if (auto earlier = find_existing(st, input.reading_id)) {
       if (earlier->hash != hash) {
         out.problems.push_back(conflict_problem(row, input.reading_id));
@@ -161,18 +180,7 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
       seen.emplace(input.reading_id, SeenInBatch{out.readings.size(), hash});
       out.readings.push_back(st.read_original(earlier->id));
       out.replayed.push_back(true);
-      continue;
     }
-    if (!out.problems.empty()) continue;  // will be undone anyway; keep checking only
-    st.insert_row(input, *battery_id, now, hash);
-    StoredReading stored;
-    static_cast<ReadingInput&>(stored) = std::move(input);
-    stored.id = db.last_insert_id();
-    stored.battery_id = *battery_id;
-    stored.received_at = now;
-    seen.emplace(stored.reading_id, SeenInBatch{out.readings.size(), hash});
-    out.readings.push_back(std::move(stored));
-    out.replayed.push_back(false);
   }
   if (!out.problems.empty()) {
     out.readings.clear();
@@ -239,13 +247,9 @@ StoreResult<std::size_t> SqliteStore::load_readings(const std::vector<ReadingInp
       }
       ReadingInput r = given;
       if (r.reading_id.empty()) r.reading_id = assigned_reading_id();
-      try {
-        st.insert_row(r, *battery_id, now, content_hash(r));
-      } catch (const DbError& e) {
-        if (e.error().code != StoreErrc::conflict) throw;
+      if (!st.insert_row(r, *battery_id, now, content_hash(r)))
         fail(StoreErrc::conflict, "reading_id '" + r.reading_id + "' is already stored",
              "reading_id");
-      }
     }
     return batch.size();
   });

@@ -1,6 +1,8 @@
 // Opening, connection pool and operations of the SQLite store.
 #include "server/storage/sqlite_store.hpp"
 
+#include <sqlite3.h>
+
 #include <fcntl.h>
 #include <unistd.h>
 
@@ -41,6 +43,11 @@ void configure_writer(Db& db, std::chrono::milliseconds busy_timeout) {
   // A larger page cache for the writer, so a big batch does not spill pages
   // into the WAL before it commits (KiB; SQLite's default is 2 MiB).
   db.exec("PRAGMA cache_size = -" + std::to_string(kWriterCacheKib));
+  // Each batch of a group commit runs in its own savepoint, whose undo log
+  // (the sub-journal) otherwise spills to a temporary file past 64 KiB:
+  // a pwrite per touched page. It only lives until the batch is released,
+  // so memory is the right place (bounded by the request body limit).
+  require_pragma(db, "PRAGMA temp_store = MEMORY", "PRAGMA temp_store", "2");
 }
 
 // Forces a file's contents to stable storage.
@@ -56,6 +63,12 @@ void sync_file(const std::filesystem::path& path) {
 }  // namespace
 
 SqliteStore::SqliteStore(SqliteOptions options) : options_(std::move(options)) {
+  // SQLite's allocation statistics take a process-wide mutex on every
+  // malloc, which every connection thread then contends for; nothing here
+  // reads them. Only possible before SQLite initialises; later calls are
+  // refused (SQLITE_MISUSE) and change nothing.
+  static const int memstatus_off = sqlite3_config(SQLITE_CONFIG_MEMSTATUS, 0);
+  (void)memstatus_off;
   if (options_.max_readers == 0) options_.max_readers = 1;
   if (options_.read_only) {
     Lease probe = lease_reader();

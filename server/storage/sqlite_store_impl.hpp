@@ -6,8 +6,11 @@
 // sqlite_readings.cpp, sqlite_tokens.cpp.
 #pragma once
 
+#include <atomic>
 #include <condition_variable>
 #include <memory>
+#include <string>
+#include <unordered_map>
 #include <mutex>
 #include <type_traits>
 #include <vector>
@@ -109,6 +112,15 @@ class SqliteStore final : public Store {
     }
   }
 
+  // write() for depots, vehicles and batteries: afterwards the fleet
+  // version moves on, so cached batteries are looked up again.
+  template <class F>
+  auto write_fleet(F&& body) -> StoreResult<std::invoke_result_t<F&, Db&>> {
+    auto result = write(std::forward<F>(body));
+    fleet_version_.fetch_add(1, std::memory_order_acq_rel);
+    return result;
+  }
+
   // Runs `body(Db&)` on a pooled reader inside one read transaction, so
   // multi-query reads see one consistent snapshot.
   template <class F>
@@ -127,6 +139,20 @@ class SqliteStore final : public Store {
   SqliteOptions options_;
   std::mutex write_mutex_;
   std::unique_ptr<Db> writer_;  // GUARDED_BY(write_mutex_)
+
+  // Batteries by serial as last read, with the fleet version read before
+  // the query: every reading posted looks its battery up, and a reader
+  // transaction costs far more than a map look-up while readings are being
+  // written. Rows change only through write_fleet() (this process owns the
+  // database), which moves the version on.
+  struct CachedBattery {
+    Battery battery;
+    std::uint64_t fleet_version;
+  };
+  static constexpr std::size_t kMaxCachedBatteries = 100'000;
+  std::atomic<std::uint64_t> fleet_version_{0};
+  std::mutex battery_cache_mutex_;
+  std::unordered_map<std::string, CachedBattery> battery_cache_;  // GUARDED_BY(battery_cache_mutex_)
 
   std::mutex pool_mutex_;
   std::condition_variable pool_free_;

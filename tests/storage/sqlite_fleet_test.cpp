@@ -164,6 +164,36 @@ TEST_CASE("fitting and retiring record events and retiring unfits the battery") 
   CHECK(f.store->fit_battery("NY-0001", other, at(11)).error().code == StoreErrc::conflict);
 }
 
+TEST_CASE("get_battery answers from its cache only while no fleet write came in between") {
+  // Every posted reading looks its battery up, so the store keeps the last
+  // answer per serial; each change below must still show at once.
+  Fleet f;
+  CHECK(f.store->get_battery("NY-0001")->status == BatteryStatus::in_service);
+  CHECK(f.store->get_battery("NY-0001")->depot_id == f.depot.id);  // served from the cache
+
+  Battery b = f.battery;
+  b.rated_cca_a = models::Amperes{700};
+  REQUIRE(f.store->update_battery(b).ok());
+  CHECK(f.store->get_battery("NY-0001")->rated_cca_a.value == 700.0);
+
+  // Moving the vehicle to another depot moves the battery with it.
+  const Id south = f.store->create_depot({0, "South Quay", "Europe/Oslo", models::Celsius{-12}})
+                       .value()
+                       .id;
+  Vehicle moved = f.store->get_vehicle(f.vehicle.id).value();
+  moved.depot_id = south;
+  REQUIRE(f.store->update_vehicle(moved).ok());
+  CHECK(f.store->get_battery("NY-0001")->depot_id == south);
+
+  REQUIRE(f.store->retire_battery("NY-0001", "case cracked", at(5)).ok());
+  CHECK(f.store->get_battery("NY-0001")->status == BatteryStatus::retired);
+
+  // A serial registered after a miss is found.
+  CHECK(f.store->get_battery("NY-0077").error().code == StoreErrc::not_found);
+  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0077"), at(6)).ok());
+  CHECK(f.store->get_battery("NY-0077").ok());
+}
+
 TEST_CASE("batteries filter by depot, status and chemistry") {
   Fleet f;
   auto agm = Fleet::make_battery("NY-0002", f.vehicle.id);
