@@ -54,11 +54,16 @@ class Checker {
     errors_.push_back(FieldError{std::move(field), std::move(detail), std::move(allowed)});
   }
 
-  // A number within [lo, hi]; NaN and infinities fail too.
-  void check_range(double v, double lo, double hi, const std::string& field,
-                   const std::string& allowed) {
-    if (std::isfinite(v) && v >= lo && v <= hi) return;
-    add(field, field + " " + text::format_shortest(v) + " is outside the allowed range", allowed);
+  // Whether v lies within [lo, hi]; NaN and infinities do not.
+  static bool within(double v, double lo, double hi) {
+    return std::isfinite(v) && v >= lo && v <= hi;
+  }
+
+  // A number outside its range. The texts are built only here, on failure:
+  // a valid reading (nearly all of them) costs no string formatting.
+  void out_of_range(double v, const std::string& field, std::string allowed) {
+    add(field, field + " " + text::format_shortest(v) + " is outside the allowed range",
+        std::move(allowed));
   }
 
   double max_voltage() const {
@@ -74,7 +79,7 @@ class Checker {
   void check_reading_id() {
     const std::string_view id = r_.reading_id;
     if (id.empty()) return;  // optional: the server assigns one
-    const std::string allowed = "empty, or 1 to 64 characters of A-Z a-z 0-9 . _ : -";
+    constexpr const char* allowed = "empty, or 1 to 64 characters of A-Z a-z 0-9 . _ : -";
     if (id.size() > kMaxIdLength) return add("reading_id", "reading_id is too long", allowed);
     for (const char c : id) {
       const bool ok = (c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9') ||
@@ -85,7 +90,7 @@ class Checker {
 
   void check_serial() {
     const std::string_view s = r_.serial;
-    const std::string allowed =
+    constexpr const char* allowed =
         "1 to 64 characters; no control characters, '/', '\\', '..' or leading/trailing spaces";
     const auto length = text::utf8_length(s);
     if (s.empty()) return add("serial", "serial is required", allowed);
@@ -115,17 +120,17 @@ class Checker {
   void check_cell_sg() {
     const auto n = r_.cell_sg.size();
     if (n == 0) return;
-    const std::string count_allowed =
-        cells_ > 0 ? std::to_string(cells_) + " values, one per cell"
-                   : "1 to " + std::to_string(kMaxCells) + " values, one per cell";
     if ((cells_ > 0 && n != static_cast<std::size_t>(cells_)) || n > std::size_t{kMaxCells}) {
-      add("cell_sg", "cell_sg has " + std::to_string(n) + " values", count_allowed);
+      add("cell_sg", "cell_sg has " + std::to_string(n) + " values",
+          cells_ > 0 ? std::to_string(cells_) + " values, one per cell"
+                     : "1 to " + std::to_string(kMaxCells) + " values, one per cell");
     }
-    const std::string allowed = range_text(kMinSg, kMaxSg, 3, "");
     // Values past kMaxCells are already wrong by count; checking them one by
     // one would only let a huge list make a huge error list.
     for (std::size_t i = 0; i < std::min(n, std::size_t{kMaxCells}); ++i) {
-      check_range(r_.cell_sg[i].value, kMinSg, kMaxSg, "cell_sg/" + std::to_string(i), allowed);
+      const double sg = r_.cell_sg[i].value;
+      if (!within(sg, kMinSg, kMaxSg))
+        out_of_range(sg, "cell_sg/" + std::to_string(i), range_text(kMinSg, kMaxSg, 3, ""));
     }
     if (!r_.electrolyte) {
       add("electrolyte_temp_c", "electrolyte temperature is required with cell_sg",
@@ -134,37 +139,37 @@ class Checker {
   }
 
   void check_ocv() {
-    if (r_.ocv) check_range(r_.ocv->value, 0.0, max_voltage(), "ocv_v", voltage_allowed());
+    if (r_.ocv && !within(r_.ocv->value, 0.0, max_voltage()))
+      out_of_range(r_.ocv->value, "ocv_v", voltage_allowed());
   }
 
   void check_temperature(const std::optional<EnteredTemperature>& t, const std::string& base) {
     if (!t) return;
+    if (within(t->value.value, kMinTempC, kMaxTempC)) return;
     if (t->unit == TempUnit::f) {
       const std::string allowed =
           range_text(fahrenheit_from_celsius(Celsius{kMinTempC}),
                      fahrenheit_from_celsius(Celsius{kMaxTempC}), 0, "F") +
           " (" + range_text(kMinTempC, kMaxTempC, 0, "C") + ")";
-      if (std::isfinite(t->value.value) && t->value.value >= kMinTempC &&
-          t->value.value <= kMaxTempC) {
-        return;
-      }
       const double f = fahrenheit_from_celsius(t->value);
       return add(base + "_f", base + "_f " + text::format_shortest(f) +
                                   " F is outside the allowed range", allowed);
     }
-    check_range(t->value.value, kMinTempC, kMaxTempC, base + "_c",
-                range_text(kMinTempC, kMaxTempC, 0, "C"));
+    out_of_range(t->value.value, base + "_c", range_text(kMinTempC, kMaxTempC, 0, "C"));
   }
 
   void check_rest() {
-    if (r_.rest) check_range(r_.rest->value, 0.0, kMaxRestH, "rest_h", range_text(0, kMaxRestH, 0, "h"));
+    if (r_.rest && !within(r_.rest->value, 0.0, kMaxRestH))
+      out_of_range(r_.rest->value, "rest_h", range_text(0, kMaxRestH, 0, "h"));
   }
 
   void check_load_test() {
     const auto& amps = r_.load_test_current;
     const auto& end = r_.load_test_end;
-    if (amps) check_range(amps->value, 0.0, kMaxLoadTestA, "load_test_a", range_text(0, kMaxLoadTestA, 0, "A"));
-    if (end) check_range(end->value, 0.0, max_voltage(), "load_test_end_v", voltage_allowed());
+    if (amps && !within(amps->value, 0.0, kMaxLoadTestA))
+      out_of_range(amps->value, "load_test_a", range_text(0, kMaxLoadTestA, 0, "A"));
+    if (end && !within(end->value, 0.0, max_voltage()))
+      out_of_range(end->value, "load_test_end_v", voltage_allowed());
     if (amps && !end) {
       add("load_test_end_v", "a load test needs its end voltage", "given together with load_test_a");
     }
@@ -173,16 +178,19 @@ class Checker {
     }
   }
 
-  void check_text(std::string_view s, const std::string& field, bool multiline) {
-    const std::string allowed = "at most " + std::to_string(kMaxTextLength) +
-                                " characters of UTF-8 text" +
-                                (multiline ? "" : " without control characters");
+  void check_text(std::string_view s, std::string_view field_name, bool multiline) {
+    if (s.empty()) return;
+    const std::string field(field_name);
+    const auto allowed = [&] {
+      return "at most " + std::to_string(kMaxTextLength) + " characters of UTF-8 text" +
+             (multiline ? "" : " without control characters");
+    };
     const auto length = text::utf8_length(s);
-    if (!length) return add(field, field + " is not valid UTF-8", allowed);
+    if (!length) return add(field, field + " is not valid UTF-8", allowed());
     if (*length > kMaxTextLength) {
-      return add(field, field + " has " + std::to_string(*length) + " characters", allowed);
+      return add(field, field + " has " + std::to_string(*length) + " characters", allowed());
     }
-    if (text::has_control(s, multiline)) add(field, field + " holds control characters", allowed);
+    if (text::has_control(s, multiline)) add(field, field + " holds control characters", allowed());
   }
 
   const ReadingInput& r_;
