@@ -53,12 +53,13 @@ Reply Api::get(const std::string& target, std::string_view accept) const {
   return exchange(std::move(r));
 }
 
-Reply Api::post(const std::string& target, const Json& body) const {
+Reply Api::post(const std::string& target, const Json& body, std::string_view prefer) const {
   HttpRequest r;
   r.method = "POST";
   r.target = target;
   r.body = body.dump();
   r.content_type = kJsonType;
+  r.prefer = std::string(prefer);
   return exchange(std::move(r));
 }
 

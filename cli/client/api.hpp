@@ -40,7 +40,9 @@ class Api {
   Api(Transport transport, std::string token) : transport_(std::move(transport)), token_(std::move(token)) {}
 
   Reply get(const std::string& target, std::string_view accept = "application/json") const;
-  Reply post(const std::string& target, const Json& body) const;
+  // `prefer`: a Prefer header value, e.g. "return=minimal" when only the
+  // counts of the answer matter.
+  Reply post(const std::string& target, const Json& body, std::string_view prefer = {}) const;
   Reply patch(const std::string& target, const Json& body) const;
   Reply remove(const std::string& target) const;
 

@@ -81,6 +81,7 @@ models::Result<HttpResponse> send(const Url& url, const HttpRequest& request, st
   req.set(http::field::user_agent, kUserAgent);
   req.set(http::field::accept, request.accept);
   if (!request.bearer_token.empty()) req.set(http::field::authorization, "Bearer " + request.bearer_token);
+  if (!request.prefer.empty()) req.set("Prefer", request.prefer);
   if (!request.content_type.empty()) {
     req.set(http::field::content_type, request.content_type);
     req.body() = request.body;

@@ -29,6 +29,7 @@ struct HttpRequest {
   std::string content_type;     // empty = no body
   std::string accept = "application/json";
   std::string bearer_token;     // empty = no Authorization header
+  std::string prefer;           // Prefer header (RFC 7240); empty = none
 };
 
 struct HttpResponse {

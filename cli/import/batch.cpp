@@ -63,7 +63,9 @@ SendOutcome send_readings(const client::Api& api, const std::vector<ReadingInput
     for (std::size_t i = chunk.first; i < chunk.first + chunk.count; ++i) {
       body.push_back(client::reading_to_json(readings[i]));
     }
-    auto reply = api.post("/v1/readings", body);
+    // Only the counts are read back: the short answer saves the server
+    // rendering every reading again (see POST /v1/readings, Prefer).
+    auto reply = api.post("/v1/readings", body, "return=minimal");
     if (!reply.ok) {
       outcome.failed_chunk = chunk;
       outcome.failure = std::move(reply);

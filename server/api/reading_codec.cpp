@@ -149,4 +149,72 @@ json derived_json(const analytics::DerivedReading& d) {
           {"flags", std::move(flags)}};
 }
 
+namespace {
+
+template <class Q>
+std::optional<double> raw_value(const std::optional<Q>& q) {
+  return q ? std::optional<double>(q->value) : std::nullopt;
+}
+
+std::optional<double> temperature_c(const std::optional<wire::EnteredTemperature>& t) {
+  return t ? std::optional<double>(t->value.value) : std::nullopt;
+}
+
+std::optional<std::string_view> unit_text(const std::optional<wire::EnteredTemperature>& t) {
+  if (!t) return std::nullopt;
+  return t->unit == wire::TempUnit::f ? "F" : "C";
+}
+
+}  // namespace
+
+void write_reading_members(JsonText& out, const wire::ReadingInput& r) {
+  out.member("reading_id", r.reading_id)
+      .member("serial", r.serial)
+      .member("taken_at", wire::format_timestamp(r.taken_at))
+      .member("ocv_v", raw_value(r.ocv))
+      .key("cell_sg")
+      .begin_array();
+  for (const auto& sg : r.cell_sg) out.value(sg.value);
+  out.end_array()
+      .member("electrolyte_temp_c", temperature_c(r.electrolyte))
+      .member("electrolyte_temp_unit", unit_text(r.electrolyte))
+      .member("ambient_temp_c", temperature_c(r.ambient))
+      .member("ambient_temp_unit", unit_text(r.ambient))
+      .member("rest_h", raw_value(r.rest))
+      .member("load_test_a", raw_value(r.load_test_current))
+      .member("load_test_end_v", raw_value(r.load_test_end))
+      .member("logged_by", r.logged_by)
+      .member("source", r.source)
+      .member("note", r.note)
+      .member("after_charge", r.after_charge)
+      .member("water_added", r.water_added);
+}
+
+void write_reading_members(JsonText& out, const storage::StoredReading& r) {
+  write_reading_members(out, static_cast<const wire::ReadingInput&>(r));
+  out.member("received_at", wire::format_timestamp(r.received_at));
+}
+
+void write_derived(JsonText& out, const analytics::DerivedReading& d) {
+  out.begin_object()
+      .member("electrolyte_c", d.electrolyte_c)
+      .member("corrected_sg", d.corrected_sg)
+      .member("corrected_cell_sg", d.corrected_cell_sg)
+      .member("soc_from_sg_percent", d.soc_from_sg_percent)
+      .member("soc_from_ocv_percent", d.soc_from_ocv_percent)
+      .member("ocv_settled", d.ocv_settled)
+      .member("soc_percent", d.soc_percent)
+      .member("soc_uncertainty_percent", d.soc_uncertainty_percent)
+      .member("sg_equivalent", d.sg_equivalent)
+      .member("freezing_point_c", d.freezing_point_c)
+      .member("cell_spread", d.cell_spread)
+      .member("weak_cell", d.weak_cell)
+      .member("load_test_min_v", d.load_test_min_v)
+      .member("trusted", d.trusted)
+      .key("flags")
+      .begin_array();
+  for (auto word : d.flags.words()) out.value(word);
+  out.end_array().end_object();
+}
+
 }  // namespace pbfleet::api

@@ -9,6 +9,7 @@
 #include "models/analytics/derive.hpp"
 #include "models/wire/reading.hpp"
 #include "server/api/json_fields.hpp"
+#include "server/api/json_text.hpp"
 #include "server/storage/domain.hpp"
 
 namespace pbfleet::api {
@@ -21,5 +22,11 @@ nlohmann::json reading_json(const models::wire::ReadingInput& reading);
 nlohmann::json reading_json(const storage::StoredReading& reading);
 // The derived values of one reading.
 nlohmann::json derived_json(const analytics::DerivedReading& derived);
+
+// The same, written as text: the members of a reading (inside an object
+// the caller opened; received_at when stored) and the derived object.
+void write_reading_members(JsonText& out, const models::wire::ReadingInput& reading);
+void write_reading_members(JsonText& out, const storage::StoredReading& reading);
+void write_derived(JsonText& out, const analytics::DerivedReading& derived);
 
 }  // namespace pbfleet::api

@@ -1,5 +1,6 @@
 #include "server/api/request_util.hpp"
 
+#include <algorithm>
 #include <cctype>
 
 #include <nlohmann/json.hpp>
@@ -94,6 +95,14 @@ http::Response json_response(int status, const nlohmann::json& body) {
   return r;
 }
 
+http::Response json_text_response(int status, std::string body) {
+  http::Response r;
+  r.status = status;
+  r.content_type = "application/json";
+  r.body = std::move(body);
+  return r;
+}
+
 namespace {
 
 std::string_view trimmed(std::string_view s) {
@@ -148,6 +157,34 @@ bool accepts(std::string_view accept, std::string_view produced) {
 
 bool wants_csv(const http::Request& request) {
   return request.header("accept").find("text/csv") != std::string_view::npos;
+}
+
+bool prefers(std::string_view prefer, std::string_view preference) {
+  const auto eq = preference.find('=');
+  const std::string_view want_name = preference.substr(0, eq);
+  const std::string_view want_value =
+      eq == std::string_view::npos ? std::string_view{} : preference.substr(eq + 1);
+  const auto same_name = [](std::string_view a, std::string_view b) {
+    return a.size() == b.size() &&
+           std::equal(a.begin(), a.end(), b.begin(), [](char x, char y) {
+             return std::tolower(static_cast<unsigned char>(x)) ==
+                    std::tolower(static_cast<unsigned char>(y));
+           });
+  };
+  while (!prefer.empty()) {
+    const auto comma = prefer.find(',');
+    std::string_view item = prefer.substr(0, comma);
+    prefer = comma == std::string_view::npos ? std::string_view{} : prefer.substr(comma + 1);
+    item = trimmed(item.substr(0, item.find(';')));
+    const auto item_eq = item.find('=');
+    const std::string_view name = trimmed(item.substr(0, item_eq));
+    std::string_view value =
+        item_eq == std::string_view::npos ? std::string_view{} : trimmed(item.substr(item_eq + 1));
+    if (value.size() >= 2 && value.front() == '"' && value.back() == '"')
+      value = value.substr(1, value.size() - 2);
+    if (same_name(name, want_name) && value == want_value) return true;
+  }
+  return false;
 }
 
 }  // namespace pbfleet::api

@@ -35,11 +35,18 @@ struct Target {
 // A JSON response. Invalid UTF-8 in strings is replaced, never thrown.
 [[nodiscard]] http::Response json_response(int status, const nlohmann::json& body);
 [[nodiscard]] std::string dump(const nlohmann::json& body);
+// A JSON response whose body is already rendered (JsonText).
+[[nodiscard]] http::Response json_text_response(int status, std::string body);
 
 // True when an Accept header value admits one of `produced` (media types,
 // comma-separated): an absent or empty header admits anything; ranges
 // "*/*" and "type/*" match; a range with q=0 admits nothing.
 [[nodiscard]] bool accepts(std::string_view accept, std::string_view produced);
+
+// True when a Prefer header (RFC 7240) value holds `preference`, e.g.
+// "return=minimal": comma-separated preferences, each possibly followed by
+// ";"-parameters; names compare case-insensitively, values exactly.
+[[nodiscard]] bool prefers(std::string_view prefer, std::string_view preference);
 
 // True when the client asked for CSV (Accept: text/csv).
 [[nodiscard]] bool wants_csv(const http::Request& request);

@@ -5,6 +5,7 @@
 
 #include <algorithm>
 
+#include "server/api/request_util.hpp"
 #include "tests/api/fixture.hpp"
 
 namespace pbfleet::api {
@@ -41,6 +42,85 @@ TEST_CASE("one good reading is stored and answered 201 with derived values") {
   CHECK(reading["derived"]["soc_percent"].is_number());
   CHECK(reading["derived"]["flags"].is_array());
   CHECK(stored_count(f) == 1);
+}
+
+TEST_CASE("the default answer echoes every field with its derived values, in the stored form") {
+  ApiFixture f;
+  json batch = json::array({good_reading("NY-0001", "r-a"), good_reading("NY-0001", "r-b", 30)});
+  batch[1]["note"] = "tab\there, quote \" and \u00f8";
+  batch[1]["electrolyte_temp_f"] = 41.0;
+  batch[1].erase("electrolyte_temp_c");
+  auto r = f.post("/v1/readings", batch, "crew");
+  REQUIRE(r.status == 201);
+  const auto body = body_of(r);
+  REQUIRE(!body.is_discarded());
+  REQUIRE(body["readings"].size() == 2);
+  const auto& second = body["readings"][1];
+  CHECK(second["note"] == "tab\there, quote \" and \u00f8");
+  CHECK(second["electrolyte_temp_unit"] == "F");
+  CHECK(second["electrolyte_temp_c"].get<double>() == doctest::Approx(5.0));
+  CHECK(second["cell_sg"] == json({1.265, 1.260, 1.265, 1.255, 1.265, 1.260}));
+  CHECK(second["ambient_temp_c"].is_null());
+  CHECK(second["rest_h"] == 12.0);
+  CHECK(second["replayed"] == false);
+  CHECK(second["taken_at"] == batch[1]["taken_at"]);
+  CHECK(second["received_at"].is_string());
+  CHECK(second["derived"]["electrolyte_c"].get<double>() == doctest::Approx(5.0));
+  // The same reading listed back through GET has the same raw fields.
+  const auto listed = body_of(f.get("/v1/readings?serial=NY-0001", "crew"));
+  REQUIRE(listed["items"].size() == 2);
+  for (const auto& key : {"reading_id", "note", "cell_sg", "taken_at", "received_at",
+                          "electrolyte_temp_unit", "electrolyte_temp_c", "logged_by"})
+    CHECK(listed["items"][1][key] == second[key]);
+  CHECK(listed["next_cursor"].is_null());
+}
+
+TEST_CASE("Prefer: return=minimal answers with counts and ids only, and says so") {
+  ApiFixture f;
+  const json batch =
+      json::array({good_reading("NY-0001", "m-1"), good_reading("NY-0001", "m-2", 30)});
+  auto send = [&](const std::string& prefer) {
+    http::Request request;
+    request.method = "POST";
+    request.target = "/v1/readings";
+    request.body = batch.dump();
+    request.headers["content-type"] = "application/json";
+    request.headers["authorization"] = "Bearer " + f.token("crew");
+    request.headers["prefer"] = prefer;
+    return f.api().handle(std::move(request));
+  };
+  auto first = send("respond-async, RETURN=minimal; x=1");
+  REQUIRE(first.status == 201);
+  CHECK(body_of(first) == json({{"stored", 2},
+                                {"replayed", 0},
+                                {"readings",
+                                 {{{"reading_id", "m-1"}, {"replayed", false}},
+                                  {{"reading_id", "m-2"}, {"replayed", false}}}}}));
+  const auto applied = std::find(first.headers.begin(), first.headers.end(),
+                                 std::pair<std::string, std::string>{"Preference-Applied", "return=minimal"});
+  CHECK(applied != first.headers.end());
+  CHECK(stored_count(f) == 2);
+
+  auto again = send("return=minimal");
+  CHECK(again.status == 200);
+  CHECK(body_of(again)["replayed"] == 2);
+  CHECK(body_of(again)["readings"][1]["replayed"] == true);
+
+  // Any other preference gets the full answer.
+  auto full = send("return=representation");
+  CHECK(body_of(full)["readings"][0].contains("derived"));
+  CHECK(std::none_of(full.headers.begin(), full.headers.end(),
+                     [](const auto& h) { return h.first == "Preference-Applied"; }));
+}
+
+TEST_CASE("prefers() reads RFC 7240 preferences") {
+  CHECK(prefers("return=minimal", "return=minimal"));
+  CHECK(prefers("Return=minimal", "return=minimal"));
+  CHECK(prefers(" wait=10 , return = \"minimal\" ;foo", "return=minimal"));
+  CHECK_FALSE(prefers("", "return=minimal"));
+  CHECK_FALSE(prefers("return=representation", "return=minimal"));
+  CHECK_FALSE(prefers("return=minimalist", "return=minimal"));
+  CHECK_FALSE(prefers("wait=10; return=minimal", "return=minimal"));  // a parameter, not a preference
 }
 
 TEST_CASE("the same reading_id and content again is a replay answered 200 with the original") {

@@ -95,19 +95,52 @@ http::Response refused_rows(const storage::AppendOutcome& outcome, const FieldNa
   return problem(ProblemKind::validation_failed, "batch refused; nothing was stored", fields);
 }
 
-json stored_json(const storage::AppendOutcome& outcome,
-                 const std::map<std::string, storage::Battery>& batteries) {
+// The 201/200 body: every reading as stored, with its derived values.
+std::string stored_body(const storage::AppendOutcome& outcome,
+                        const std::map<std::string, storage::Battery>& batteries) {
   const analytics::AnalyticsSettings settings;
-  json list = json::array();
+  std::string body;
+  body.reserve(160 + outcome.readings.size() * 900);
+  JsonText out(body);
+  out.begin_object()
+      .member("stored", outcome.stored)
+      .member("replayed", outcome.replayed_count)
+      .key("readings")
+      .begin_array();
   for (std::size_t i = 0; i < outcome.readings.size(); ++i) {
     const auto& r = outcome.readings[i];
-    json item = reading_json(r);
-    item["replayed"] = i < outcome.replayed.size() && outcome.replayed[i];
-    if (auto b = batteries.find(r.serial); b != batteries.end())
-      item["derived"] = derived_json(analytics::derive(point_of(r), spec_of(b->second), settings));
-    list.push_back(std::move(item));
+    out.begin_object();
+    write_reading_members(out, r);
+    out.member("replayed", i < outcome.replayed.size() && outcome.replayed[i]);
+    if (auto b = batteries.find(r.serial); b != batteries.end()) {
+      out.key("derived");
+      write_derived(out, analytics::derive(point_of(r), spec_of(b->second), settings));
+    }
+    out.end_object();
   }
-  return {{"stored", outcome.stored}, {"replayed", outcome.replayed_count}, {"readings", list}};
+  out.end_array().end_object();
+  return body;
+}
+
+// The body asked for with "Prefer: return=minimal" (RFC 7240): the counts
+// and each reading's id, for bulk clients that keep what they sent.
+std::string minimal_body(const storage::AppendOutcome& outcome) {
+  std::string body;
+  body.reserve(64 + outcome.readings.size() * 48);
+  JsonText out(body);
+  out.begin_object()
+      .member("stored", outcome.stored)
+      .member("replayed", outcome.replayed_count)
+      .key("readings")
+      .begin_array();
+  for (std::size_t i = 0; i < outcome.readings.size(); ++i) {
+    out.begin_object()
+        .member("reading_id", outcome.readings[i].reading_id)
+        .member("replayed", i < outcome.replayed.size() && outcome.replayed[i])
+        .end_object();
+  }
+  out.end_array().end_object();
+  return body;
 }
 
 }  // namespace
@@ -128,13 +161,18 @@ void post_readings(const Call& call, http::Reply reply) {
                              " field(s) invalid; nothing was stored",
                          checked.problems));
   Metrics& metrics = call.ctx.metrics;
-  auto done = [reply, name = name, batteries = std::move(checked.batteries),
-               &metrics](storage::StoreResult<storage::AppendOutcome> result) {
+  const bool minimal = prefers(call.request.header("prefer"), "return=minimal");
+  auto done = [reply, name = name, batteries = std::move(checked.batteries), &metrics,
+               minimal](storage::StoreResult<storage::AppendOutcome> result) {
     if (!result) return reply(store_problem(result.error()));
     const auto& outcome = result.value();
     if (!outcome.accepted()) return reply(refused_rows(outcome, name));
     metrics.add_readings_stored(outcome.stored);
-    reply(json_response(outcome.stored > 0 ? 201 : 200, stored_json(outcome, batteries)));
+    const int status = outcome.stored > 0 ? 201 : 200;
+    if (!minimal) return reply(json_text_response(status, stored_body(outcome, batteries)));
+    auto response = json_text_response(status, minimal_body(outcome));
+    response.headers.emplace_back("Preference-Applied", "return=minimal");
+    reply(std::move(response));
   };
   if (!call.ctx.writer.submit(std::move(readings), std::move(done)))
     reply(problem(ProblemKind::storage_unavailable, "too many writes queued; retry shortly"));
@@ -167,12 +205,20 @@ http::Response list_readings(const Call& call) {
   }
   auto result = call.ctx.store.list_readings(filter, page);
   if (!result) return store_problem(result.error());
-  json items = json::array();
-  for (const auto& r : result->items) items.push_back(reading_json(r));
-  return json_response(200, {{"items", std::move(items)},
-                             {"next_cursor", result->next_cursor.empty()
-                                                 ? json(nullptr)
-                                                 : json(result->next_cursor)}});
+  std::string body;
+  body.reserve(64 + result->items.size() * 400);
+  JsonText out(body);
+  out.begin_object().key("items").begin_array();
+  for (const auto& r : result->items) {
+    out.begin_object();
+    write_reading_members(out, r);
+    out.end_object();
+  }
+  out.end_array().key("next_cursor");
+  if (result->next_cursor.empty()) out.null();
+  else out.value(result->next_cursor);
+  out.end_object();
+  return json_text_response(200, std::move(body));
 }
 
 }  // namespace pbfleet::api::handlers
