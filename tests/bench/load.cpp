@@ -53,6 +53,7 @@ bhttp::request<bhttp::string_body> make_request(const Shared& s, LoadRequest r) 
   req.keep_alive(true);
   if (!s.spec.token.empty()) req.set(bhttp::field::authorization, "Bearer " + s.spec.token);
   if (!r.body.empty()) req.set(bhttp::field::content_type, "application/json");
+  if (!r.prefer.empty()) req.set("Prefer", r.prefer);
   req.body() = std::move(r.body);
   req.prepare_payload();
   return req;

@@ -14,7 +14,8 @@ namespace pbfleet::bench {
 struct LoadRequest {
   std::string method;
   std::string target;
-  std::string body;  // sent as application/json when not empty
+  std::string body;    // sent as application/json when not empty
+  std::string prefer;  // Prefer header (RFC 7240) when not empty
 };
 
 struct LoadSpec {
