@@ -114,7 +114,13 @@ int main(int argc, char** argv) {
   token_cmd->require_subcommand(1);
   token_cmd->fallthrough();
   create->fallthrough();
-  CLI11_PARSE(cli, argc, argv);
+  try {
+    cli.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    // Help and version end well; anything else is a usage error (exit 2,
+    // like every other refused command line), not CLI11's own codes.
+    return cli.exit(e) == 0 ? 0 : kExitUsage;
+  }
 
   std::erase_if(flag_values, [](const auto& kv) { return kv.second.empty(); });
   auto config = load_config(config_file, flag_values);
