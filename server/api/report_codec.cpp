@@ -5,30 +5,13 @@
 #include "models/wire/csv.hpp"
 #include "models/wire/reading.hpp"
 #include "server/api/json_fields.hpp"
+#include "server/api/json_text.hpp"
 
 namespace pbfleet::api {
 
-using nlohmann::json;
 namespace wire = models::wire;
 
 namespace {
-
-template <class T>
-json opt(const std::optional<T>& v) {
-  return v ? json(*v) : json(nullptr);
-}
-json opt_time(const std::optional<std::chrono::sys_seconds>& t) {
-  return t ? json(wire::format_timestamp(*t)) : json(nullptr);
-}
-json opt_day(const std::optional<std::chrono::sys_days>& d) {
-  return d ? json(format_date(*d)) : json(nullptr);
-}
-template <class List>
-json words(const List& list) {
-  json out = json::array();
-  for (const auto& w : list) out.push_back(std::string(w));
-  return out;
-}
 
 // Builds a CSV document; text cells guarded, number cells plain.
 class Csv {
@@ -69,122 +52,161 @@ std::string joined(const std::vector<std::string>& parts) {
   return out;
 }
 
-json risk_json(const analytics::WinterRisk& r) {
-  return {{"serial", r.serial},
-          {"depot_id", r.depot_id},
-          {"depot_name", r.depot_name},
-          {"vehicle_code", r.vehicle_code},
-          {"level", analytics::to_string(r.level)},
-          {"low_c", r.low_c},
-          {"reading_at", opt_time(r.reading_at)},
-          {"data_age_days", opt(r.data_age_days)},
-          {"soc_at_reading_percent", opt(r.soc_at_reading_percent)},
-          {"projected_soc_percent", opt(r.projected_soc_percent)},
-          {"available_a", opt(r.available_a)},
-          {"required_a", opt(r.required_a)},
-          {"crank_margin", opt(r.crank_margin)},
-          {"crank_margin_full", opt(r.crank_margin_full)},
-          {"freezing_point_c", opt(r.freezing_point_c)},
-          {"freeze_margin_c", opt(r.freeze_margin_c)},
-          {"replacement_expected", r.replacement_expected},
-          {"reasons", r.reasons},
-          {"action", r.action},
-          {"cautions", words(r.cautions)}};
+template <class List>
+void write_strings(JsonText& w, const List& list) {
+  w.begin_array();
+  for (const auto& s : list) w.value(std::string_view(s));
+  w.end_array();
 }
 
-json depot_json(const analytics::DepotWinterSummary& d) {
-  return {{"depot_id", d.depot_id},   {"depot_name", d.depot_name},
-          {"low_c", d.low_c},         {"batteries", d.batteries},
-          {"act_now", d.act_now},     {"watch", d.watch},
-          {"no_data", d.no_data},     {"ok", d.ok},
-          {"expected_replacements", d.expected_replacements},
-          {"oldest_data_days", opt(d.oldest_data_days)}};
+void write_risk(JsonText& w, const analytics::WinterRisk& r) {
+  w.begin_object();
+  w.key("serial").value(r.serial).key("depot_id").value(r.depot_id);
+  w.key("depot_name").value(r.depot_name).key("vehicle_code").value(r.vehicle_code);
+  w.key("level").value(analytics::to_string(r.level)).key("low_c").value(r.low_c);
+  w.key("reading_at");
+  r.reading_at ? w.value(wire::format_timestamp(*r.reading_at)) : w.null();
+  w.key("data_age_days").value(r.data_age_days);
+  w.key("soc_at_reading_percent").value(r.soc_at_reading_percent);
+  w.key("projected_soc_percent").value(r.projected_soc_percent);
+  w.key("available_a").value(r.available_a).key("required_a").value(r.required_a);
+  w.key("crank_margin").value(r.crank_margin).key("crank_margin_full").value(r.crank_margin_full);
+  w.key("freezing_point_c").value(r.freezing_point_c).key("freeze_margin_c").value(r.freeze_margin_c);
+  w.key("replacement_expected").value(r.replacement_expected);
+  w.key("reasons");
+  write_strings(w, r.reasons);
+  w.key("action").value(r.action).key("cautions");
+  write_strings(w, r.cautions);
+  w.end_object();
 }
 
-json trend_json(const std::optional<analytics::TrendFit>& t) {
-  if (!t) return nullptr;
-  return {{"points", t->points},         {"slope_per_day", t->slope},
-          {"slope_low", t->slope_low},   {"slope_high", t->slope_high},
-          {"confidence", t->confidence}, {"same_sign_fraction", t->same_sign_fraction}};
+void write_depot(JsonText& w, const analytics::DepotWinterSummary& d) {
+  w.begin_object();
+  w.key("depot_id").value(d.depot_id).key("depot_name").value(d.depot_name);
+  w.key("low_c").value(d.low_c).key("batteries").value(d.batteries);
+  w.key("act_now").value(d.act_now).key("watch").value(d.watch);
+  w.key("no_data").value(d.no_data).key("ok").value(d.ok);
+  w.key("expected_replacements").value(d.expected_replacements);
+  w.key("oldest_data_days").value(d.oldest_data_days);
+  w.end_object();
 }
 
-json sulfation_item(const analytics::SulfationAssessment& a) {
-  json actions = json::array();
-  for (auto act : a.actions) actions.push_back(analytics::to_string(act));
-  return {{"serial", a.serial},
-          {"depot_id", a.depot_id},
-          {"depot_name", a.depot_name},
-          {"level", analytics::to_string(a.level)},
-          {"undercharge_days", a.undercharge_days},
-          {"exposure_window_days", a.exposure_window_days},
-          {"undercharge_threshold_pct", a.undercharge_threshold_pct},
-          {"trend_basis", analytics::to_string(a.trend_basis)},
-          {"trend_points", a.trend_points},
-          {"sg_trend", trend_json(a.sg_trend)},
-          {"spread_trend", trend_json(a.spread_trend)},
-          {"latest_spread", opt(a.latest_spread)},
-          {"weak_cell", opt(a.weak_cell)},
-          {"charges_seen", a.charges_seen},
-          {"charges_not_recovered", a.charges_not_recovered},
-          {"latest_charge_recovered", a.latest_charge_recovered},
-          {"load_test_failed", a.load_test_failed},
-          {"reasons", a.reasons},
-          {"actions", std::move(actions)},
-          {"cautions", words(a.cautions)}};
+void write_trend(JsonText& w, const std::optional<analytics::TrendFit>& t) {
+  if (!t) {
+    w.null();
+    return;
+  }
+  w.begin_object();
+  w.key("points").value(t->points).key("slope_per_day").value(t->slope);
+  w.key("slope_low").value(t->slope_low).key("slope_high").value(t->slope_high);
+  w.key("confidence").value(t->confidence).key("same_sign_fraction").value(t->same_sign_fraction);
+  w.end_object();
 }
 
-json replacement_item(const analytics::ReplacementForecast& f) {
-  return {{"serial", f.serial},
-          {"depot_id", f.depot_id},
-          {"depot_name", f.depot_name},
-          {"criterion", analytics::to_string(f.criterion)},
-          {"threshold_sg", f.threshold_sg},
-          {"design_low_c", f.design_low_c},
-          {"date", opt_day(f.date)},
-          {"earliest", opt_day(f.earliest)},
-          {"latest", opt_day(f.latest)},
-          {"already_crossed", f.already_crossed},
-          {"slope_sg_per_30d", opt(f.slope_sg_per_30d)},
-          {"reason", f.reason}};
+void write_sulfation(JsonText& w, const analytics::SulfationAssessment& a) {
+  w.begin_object();
+  w.key("serial").value(a.serial).key("depot_id").value(a.depot_id);
+  w.key("depot_name").value(a.depot_name).key("level").value(analytics::to_string(a.level));
+  w.key("undercharge_days").value(a.undercharge_days);
+  w.key("exposure_window_days").value(a.exposure_window_days);
+  w.key("undercharge_threshold_pct").value(a.undercharge_threshold_pct);
+  w.key("trend_basis").value(analytics::to_string(a.trend_basis));
+  w.key("trend_points").value(a.trend_points);
+  w.key("sg_trend");
+  write_trend(w, a.sg_trend);
+  w.key("spread_trend");
+  write_trend(w, a.spread_trend);
+  w.key("latest_spread").value(a.latest_spread).key("weak_cell").value(a.weak_cell);
+  w.key("charges_seen").value(a.charges_seen);
+  w.key("charges_not_recovered").value(a.charges_not_recovered);
+  w.key("latest_charge_recovered").value(a.latest_charge_recovered);
+  w.key("load_test_failed").value(a.load_test_failed);
+  w.key("reasons");
+  write_strings(w, a.reasons);
+  w.key("actions").begin_array();
+  for (auto act : a.actions) w.value(analytics::to_string(act));
+  w.end_array();
+  w.key("cautions");
+  write_strings(w, a.cautions);
+  w.end_object();
 }
 
+void write_day(JsonText& w, const std::optional<std::chrono::sys_days>& d) {
+  d ? w.value(format_date(*d)) : w.null();
+}
+
+void write_replacement(JsonText& w, const analytics::ReplacementForecast& f) {
+  w.begin_object();
+  w.key("serial").value(f.serial).key("depot_id").value(f.depot_id);
+  w.key("depot_name").value(f.depot_name).key("criterion").value(analytics::to_string(f.criterion));
+  w.key("threshold_sg").value(f.threshold_sg).key("design_low_c").value(f.design_low_c);
+  w.key("date");
+  write_day(w, f.date);
+  w.key("earliest");
+  write_day(w, f.earliest);
+  w.key("latest");
+  write_day(w, f.latest);
+  w.key("already_crossed").value(f.already_crossed);
+  w.key("slope_sg_per_30d").value(f.slope_sg_per_30d).key("reason").value(f.reason);
+  w.end_object();
+}
+
+// About this many bytes of JSON per battery (a winter item with two
+// reasons is ~750): reserving once avoids regrowing a multi-MB string.
+constexpr std::size_t kBytesPerItem = 800;
 }  // namespace
 
-json winter_json(const analytics::WinterReport& report) {
-  json batteries = json::array(), depots = json::array();
-  for (const auto& r : report.batteries) batteries.push_back(risk_json(r));
-  for (const auto& d : report.depots) depots.push_back(depot_json(d));
-  return {{"cold_date", format_date(report.cold_date)},
-          {"batteries", std::move(batteries)},
-          {"depots", std::move(depots)}};
+std::string winter_json(const analytics::WinterReport& report) {
+  std::string out;
+  JsonText w(out);
+  out.reserve(kBytesPerItem * report.batteries.size() + 256 * report.depots.size() + 64);
+  w.begin_object().key("cold_date").value(format_date(report.cold_date));
+  w.key("batteries").begin_array();
+  for (const auto& r : report.batteries) write_risk(w, r);
+  w.end_array().key("depots").begin_array();
+  for (const auto& d : report.depots) write_depot(w, d);
+  w.end_array().end_object();
+  return out;
 }
 
-json sulfation_json(const std::vector<analytics::SulfationAssessment>& report) {
-  json items = json::array();
-  for (const auto& a : report) items.push_back(sulfation_item(a));
-  return {{"items", std::move(items)}};
+std::string sulfation_json(const std::vector<analytics::SulfationAssessment>& report) {
+  std::string out;
+  JsonText w(out);
+  out.reserve(kBytesPerItem * report.size() + 64);
+  w.begin_object().key("items").begin_array();
+  for (const auto& a : report) write_sulfation(w, a);
+  w.end_array().end_object();
+  return out;
 }
 
-json replacement_json(const std::vector<analytics::ReplacementForecast>& report) {
-  json items = json::array();
-  for (const auto& f : report) items.push_back(replacement_item(f));
-  return {{"items", std::move(items)}};
+std::string replacement_json(const std::vector<analytics::ReplacementForecast>& report) {
+  std::string out;
+  JsonText w(out);
+  out.reserve(kBytesPerItem / 2 * report.size() + 64);
+  w.begin_object().key("items").begin_array();
+  for (const auto& f : report) write_replacement(w, f);
+  w.end_array().end_object();
+  return out;
 }
 
-json overdue_json(const std::vector<analytics::DepotOverdue>& report, int days) {
-  json items = json::array();
-  for (const auto& d : report)
-    for (const auto& b : d.batteries)
-      items.push_back({{"depot_id", d.depot_id},
-                       {"depot_name", d.depot_name},
-                       {"serial", b.serial},
-                       {"vehicle_code", b.vehicle_code},
-                       {"last_reading", opt_time(b.last_reading)},
-                       {"days_overdue_basis", opt(b.days_overdue_basis)},
-                       {"never_read", b.never_read}});
-  return {{"days", days}, {"items", std::move(items)}};
+std::string overdue_json(const std::vector<analytics::DepotOverdue>& report, int days) {
+  std::string out;
+  JsonText w(out);
+  w.begin_object().key("days").value(days).key("items").begin_array();
+  for (const auto& d : report) {
+    for (const auto& b : d.batteries) {
+      w.begin_object();
+      w.key("depot_id").value(d.depot_id).key("depot_name").value(d.depot_name);
+      w.key("serial").value(b.serial).key("vehicle_code").value(b.vehicle_code);
+      w.key("last_reading");
+      b.last_reading ? w.value(wire::format_timestamp(*b.last_reading)) : w.null();
+      w.key("days_overdue_basis").value(b.days_overdue_basis).key("never_read").value(b.never_read);
+      w.end_object();
+    }
+  }
+  w.end_array().end_object();
+  return out;
 }
-
 std::string winter_csv(const analytics::WinterReport& report) {
   Csv csv({"serial", "depot_name", "vehicle_code", "level", "low_c", "projected_soc_percent",
            "crank_margin", "freeze_margin_c", "reading_at", "action", "reasons"});

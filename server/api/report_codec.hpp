@@ -1,11 +1,12 @@
 // JSON and CSV renderings of the reports. CSV text cells go through
 // models::wire::csv_cell (formula-injection guard); numbers never do.
+// JSON is rendered straight to text by JsonText (a fleet report is
+// megabytes; building an nlohmann::json tree first cost more than the
+// report's analytics).
 #pragma once
 
 #include <string>
 #include <vector>
-
-#include <nlohmann/json.hpp>
 
 #include "models/analytics/overdue.hpp"
 #include "models/analytics/replacement.hpp"
@@ -14,10 +15,10 @@
 
 namespace pbfleet::api {
 
-nlohmann::json winter_json(const analytics::WinterReport& report);
-nlohmann::json sulfation_json(const std::vector<analytics::SulfationAssessment>& report);
-nlohmann::json replacement_json(const std::vector<analytics::ReplacementForecast>& report);
-nlohmann::json overdue_json(const std::vector<analytics::DepotOverdue>& report, int days);
+std::string winter_json(const analytics::WinterReport& report);
+std::string sulfation_json(const std::vector<analytics::SulfationAssessment>& report);
+std::string replacement_json(const std::vector<analytics::ReplacementForecast>& report);
+std::string overdue_json(const std::vector<analytics::DepotOverdue>& report, int days);
 
 // One CSV document per report (header row, CRLF line ends): the batteries
 // of the winter report, one row per battery for the others.

@@ -71,7 +71,7 @@ http::Response winter_report(const Call& call) {
   auto report = build_winter_report(call.ctx.store, depot, cold, call.ctx.clock.now(), {});
   if (!report) return store_problem(report.error());
   if (wants_csv(call.request)) return csv_response(winter_csv(*report));
-  return json_response(200, winter_json(*report));
+  return json_text_response(200, winter_json(*report));
 }
 
 http::Response sulfation_report(const Call& call) {
@@ -81,7 +81,7 @@ http::Response sulfation_report(const Call& call) {
   auto report = build_sulfation_report(call.ctx.store, depot, call.ctx.clock.now(), {});
   if (!report) return store_problem(report.error());
   if (wants_csv(call.request)) return csv_response(sulfation_csv(*report));
-  return json_response(200, sulfation_json(*report));
+  return json_text_response(200, sulfation_json(*report));
 }
 
 http::Response replacement_report(const Call& call) {
@@ -91,7 +91,7 @@ http::Response replacement_report(const Call& call) {
   auto report = build_replacement_report(call.ctx.store, depot, call.ctx.clock.now(), {});
   if (!report) return store_problem(report.error());
   if (wants_csv(call.request)) return csv_response(replacement_csv(*report));
-  return json_response(200, replacement_json(*report));
+  return json_text_response(200, replacement_json(*report));
 }
 
 http::Response overdue_report(const Call& call) {
@@ -110,7 +110,7 @@ http::Response overdue_report(const Call& call) {
   auto report = build_overdue_report(call.ctx.store, depot, call.ctx.clock.now(), days);
   if (!report) return store_problem(report.error());
   if (wants_csv(call.request)) return csv_response(overdue_csv(*report));
-  return json_response(200, overdue_json(*report, days));
+  return json_text_response(200, overdue_json(*report, days));
 }
 
 }  // namespace pbfleet::api::handlers
