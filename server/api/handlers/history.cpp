@@ -3,6 +3,7 @@
 #include "models/analytics/history_view.hpp"
 #include "server/api/handlers/common.hpp"
 #include "server/api/handlers/handlers.hpp"
+#include "server/api/json_text.hpp"
 #include "server/api/reading_codec.hpp"
 #include "server/api/services/fleet_index.hpp"
 
@@ -33,6 +34,10 @@ bool read_bounds(const Call& call, Bound& from, Bound& to, std::vector<ProblemFi
   }
   return errors.empty();
 }
+
+// About this many bytes per reading with its derived values (~860 for a
+// six-cell reading).
+constexpr std::size_t kBytesPerRow = 1024;
 
 json events_json(const std::vector<analytics::BatteryEvent>& events) {
   json list = json::array();
@@ -68,17 +73,24 @@ http::Response battery_history(const Call& call) {
   for (const auto& e : *events) history.events.push_back({e.at, event_kind(e.kind), e.detail});
   const auto view = analytics::history_view(history, analytics::AnalyticsSettings{}, from, to);
 
-  json rows = json::array();
+  // The readings (hundreds, each with its derived values) are written as
+  // text: building them as an nlohmann tree cost more than the query and
+  // the analytics together. Battery and events are small.
+  std::string body = "{\"battery\":" + dump(to_json(battery.value())) + ",\"readings\":";
+  body.reserve(body.size() + kBytesPerRow * view.rows.size());
+  JsonText out(body);
+  out.begin_array();
   std::size_t row = 0;
   for (const auto& r : *readings) {
     if ((from && r.taken_at < *from) || (to && r.taken_at > *to)) continue;
-    json item = reading_json(r);
-    if (row < view.rows.size()) item["derived"] = derived_json(view.rows[row++].derived);
-    rows.push_back(std::move(item));
+    out.begin_object();
+    write_reading_members(out, r);
+    if (row < view.rows.size()) write_derived(out.key("derived"), view.rows[row++].derived);
+    out.end_object();
   }
-  return json_response(200, {{"battery", to_json(battery.value())},
-                             {"readings", std::move(rows)},
-                             {"events", events_json(view.events)}});
+  out.end_array();
+  body += ",\"events\":" + dump(events_json(view.events)) + "}";
+  return json_text_response(200, std::move(body));
 }
 
 }  // namespace pbfleet::api::handlers
