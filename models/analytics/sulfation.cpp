@@ -264,12 +264,16 @@ std::vector<SulfationAssessment> sulfation_report(std::span<const BatteryHistory
   for (const auto& h : fleet) {
     if (h.battery.in_service) out.push_back(assess_sulfation(h, now, s));
   }
-  std::sort(out.begin(), out.end(), [](const auto& a, const auto& b) {
+  sort_sulfation_report(out);
+  return out;
+}
+
+void sort_sulfation_report(std::vector<SulfationAssessment>& report) {
+  std::sort(report.begin(), report.end(), [](const auto& a, const auto& b) {
     if (a.level != b.level) return a.level > b.level;
     if (a.undercharge_days != b.undercharge_days) return a.undercharge_days > b.undercharge_days;
     return a.serial < b.serial;
   });
-  return out;
 }
 
 }  // namespace pbfleet::analytics

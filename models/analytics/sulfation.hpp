@@ -91,7 +91,10 @@ SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono:
 SulfationAssessment assess_sulfation(const BatteryHistory& history, std::span<const DerivedReading> derived,
                                      std::chrono::sys_seconds now, const AnalyticsSettings& settings);
 
-// Assesses every in-service battery; worst class first, then exposure, then serial.
+// Orders a fleet list: worst class first, then exposure, then serial.
+void sort_sulfation_report(std::vector<SulfationAssessment>& report);
+
+// Assesses every in-service battery; ordered as sort_sulfation_report.
 std::vector<SulfationAssessment> sulfation_report(std::span<const BatteryHistory> fleet,
                                                   std::chrono::sys_seconds now,
                                                   const AnalyticsSettings& settings);

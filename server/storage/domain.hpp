@@ -82,6 +82,21 @@ struct StoredReading : models::wire::ReadingInput {
   std::chrono::sys_seconds received_at{};  // when the store committed it (UTC)
 };
 
+// The measured part of a stored reading: what the analytics read. Fleet
+// reports load only this (no ids, no texts), so millions of readings cost
+// no string allocations. Temperature in Celsius whatever unit was entered.
+struct ReadingMeasurement {
+  std::chrono::sys_seconds taken_at{};  // UTC
+  std::optional<models::Volts> ocv;
+  std::vector<models::SpecificGravity> cell_sg;  // raw hydrometer, cell 1 first
+  std::optional<models::Celsius> electrolyte;
+  std::optional<models::Hours> rest;
+  std::optional<models::Amperes> load_test_current;
+  std::optional<models::Volts> load_test_end;
+  bool after_charge = false;
+  bool water_added = false;
+};
+
 // A battery event for its history (readings are listed separately).
 struct BatteryEvent {
   Id id = 0;

@@ -309,6 +309,29 @@ StoreResult<std::vector<BatteryReadings>> SqliteStore::last_readings(const Batte
   });
 }
 
+StoreResult<Done> SqliteStore::visit_last_measurements(const BatteryFilter& filter,
+                                                         std::size_t count,
+                                                         const MeasurementVisitor& visit) {
+  return read([&](Db& db) {
+    auto s = db.prepare(std::string(kMeasurementSelect) +
+                        " WHERE r.battery_id = ?1 ORDER BY r.taken_at DESC, r.id DESC LIMIT ?2");
+    // One buffer for every battery: rows and their cell lists keep their
+    // capacity, so the scan allocates only while the first batteries grow it.
+    std::vector<ReadingMeasurement> rows;
+    for (const Battery& b : batteries_matching(db, filter)) {
+      s.reset();
+      s.bind(1, b.id).bind(2, static_cast<std::int64_t>(count));
+      std::size_t n = 0;
+      while (s.step()) {
+        if (n == rows.size()) rows.emplace_back();
+        read_measurement(s, rows[n++]);
+      }
+      visit(b, std::span<const ReadingMeasurement>(rows.data(), n));
+    }
+    return Done{};
+  });
+}
+
 StoreResult<std::vector<BatteryReadings>> SqliteStore::latest_settled(const BatteryFilter& filter,
                                                                       models::Hours min_rest) {
   return read([&](Db& db) {

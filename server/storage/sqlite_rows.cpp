@@ -116,6 +116,18 @@ StoredReading read_reading(const Statement& s) {
   return r;
 }
 
+void read_measurement(const Statement& s, ReadingMeasurement& m) {
+  m.taken_at = seconds_from_db(s.int_at(0));
+  m.ocv = read_quantity<models::Volts>(s, 1);
+  decode_cell_sg_into(s.text_view_at(2), m.cell_sg);
+  m.electrolyte = read_quantity<models::Celsius>(s, 3);
+  m.rest = read_quantity<models::Hours>(s, 4);
+  m.load_test_current = read_quantity<models::Amperes>(s, 5);
+  m.load_test_end = read_quantity<models::Volts>(s, 6);
+  m.after_charge = s.int_at(7) != 0;
+  m.water_added = s.int_at(8) != 0;
+}
+
 ApiToken read_token(const Statement& s) {
   ApiToken t;
   t.id = s.int_at(0);
@@ -142,6 +154,12 @@ std::string encode_cell_sg(const std::vector<models::SpecificGravity>& cells) {
 
 std::vector<models::SpecificGravity> decode_cell_sg(std::string_view text) {
   std::vector<models::SpecificGravity> cells;
+  decode_cell_sg_into(text, cells);
+  return cells;
+}
+
+void decode_cell_sg_into(std::string_view text, std::vector<models::SpecificGravity>& cells) {
+  cells.clear();
   while (!text.empty()) {
     const auto end = text.find(';');
     const std::string_view part = text.substr(0, end);
@@ -152,7 +170,6 @@ std::vector<models::SpecificGravity> decode_cell_sg(std::string_view text) {
     if (end == std::string_view::npos) break;
     text.remove_prefix(end + 1);
   }
-  return cells;
 }
 
 ContentHash content_hash(const models::wire::ReadingInput& r) {

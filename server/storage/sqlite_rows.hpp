@@ -29,6 +29,10 @@ inline constexpr std::string_view kReadingSelect =
     " r.rest_h, r.load_test_a, r.load_test_end_v, r.logged_by, r.source, r.note,"
     " r.after_charge, r.water_added"
     " FROM readings r JOIN batteries b ON b.id = r.battery_id";
+// The measured columns of readings only (no join: the battery is known).
+inline constexpr std::string_view kMeasurementSelect =
+    "SELECT r.taken_at, r.ocv_v, r.cell_sg, r.electrolyte_temp_c, r.rest_h, r.load_test_a,"
+    " r.load_test_end_v, r.after_charge, r.water_added FROM readings r";
 inline constexpr std::string_view kTokenSelect =
     "SELECT t.id, t.name, t.role, t.depot_id, t.created_at, t.revoked_at, t.hash, t.expires_at"
     " FROM api_tokens t";
@@ -37,11 +41,15 @@ Depot read_depot(const Statement& s);
 Vehicle read_vehicle(const Statement& s);
 Battery read_battery(const Statement& s);
 StoredReading read_reading(const Statement& s);
+// Overwrites `m` with the row, reusing its cell_sg capacity.
+void read_measurement(const Statement& s, ReadingMeasurement& m);
 ApiToken read_token(const Statement& s);
 
 // Raw cell SGs as stored: shortest round-trip decimals joined by ';'.
 std::string encode_cell_sg(const std::vector<models::SpecificGravity>& cells);
 std::vector<models::SpecificGravity> decode_cell_sg(std::string_view text);
+// Same, into `cells` (cleared first; its capacity is reused).
+void decode_cell_sg_into(std::string_view text, std::vector<models::SpecificGravity>& cells);
 
 // Fingerprint of everything a reading says except its reading_id: the first
 // 16 bytes of SHA-256 over a length-prefixed canonical form.

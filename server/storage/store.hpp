@@ -16,7 +16,9 @@
 #include <chrono>
 #include <cstddef>
 #include <filesystem>
+#include <functional>
 #include <optional>
+#include <span>
 #include <string>
 #include <utility>
 #include <variant>
@@ -132,6 +134,11 @@ struct BatteryReadings {
   std::vector<StoredReading> readings;
 };
 
+// One battery's last readings, measurements only, newest first; the span
+// is valid during the call only.
+using MeasurementVisitor =
+    std::function<void(const Battery& battery, std::span<const ReadingMeasurement> newest_first)>;
+
 // ---- operations -------------------------------------------------------------
 
 struct DurabilitySettings {
@@ -214,6 +221,13 @@ class Store {
   // one index lookup per battery (never a scan of all readings).
   virtual StoreResult<std::vector<BatteryReadings>> last_readings(const BatteryFilter& filter,
                                                                   std::size_t count) = 0;
+  // The same readings as last_readings, measurements only, handed to
+  // `visit` one battery at a time in battery id order (one read snapshot),
+  // so a fleet's readings never sit in memory at once. `visit` must not
+  // call the store.
+  virtual StoreResult<Done> visit_last_measurements(const BatteryFilter& filter,
+                                                    std::size_t count,
+                                                    const MeasurementVisitor& visit) = 0;
   // The newest reading of each matching battery with rest_h >= min_rest
   // (a settled OCV); batteries without one come with no readings.
   virtual StoreResult<std::vector<BatteryReadings>> latest_settled(const BatteryFilter& filter,

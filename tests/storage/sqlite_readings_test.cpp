@@ -249,6 +249,59 @@ TEST_CASE("last readings per battery come newest first, at most N each") {
   CHECK(everyone[2].readings.empty());
 }
 
+TEST_CASE("visiting last measurements gives last_readings' readings, measured fields only") {
+  Fleet f;
+  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+  REQUIRE(f.store->create_battery(Fleet::make_battery("STOCK-9"), at(0)).ok());
+  auto batch = week_round("v-", 20);
+  batch[19].electrolyte = models::wire::EnteredTemperature{models::Celsius{-5}, models::wire::TempUnit::f};
+  batch[19].load_test_current = models::Amperes{400};
+  batch[19].load_test_end = models::Volts{9.9};
+  batch[19].after_charge = true;
+  batch[18].water_added = true;
+  batch[18].cell_sg.pop_back();  // the reused row buffer must not keep a stale cell
+  auto no_cells = reading("n2-a", "NY-0002", 5);
+  no_cells.cell_sg.clear();
+  no_cells.ocv.reset();
+  batch.push_back(no_cells);
+  REQUIRE(f.store->append_readings(batch, at(30))->accepted());
+
+  const auto expected = f.store->last_readings({}, 13).value();
+  std::vector<std::string> serials;
+  std::size_t index = 0;
+  const auto done = f.store->visit_last_measurements(
+      {}, 13, [&](const Battery& b, std::span<const ReadingMeasurement> rows) {
+        REQUIRE(index < expected.size());
+        const auto& want = expected[index++];
+        serials.push_back(b.serial);
+        CHECK(b.serial == want.battery.serial);
+        REQUIRE(rows.size() == want.readings.size());
+        for (std::size_t i = 0; i < rows.size(); ++i) {
+          const auto& r = want.readings[i];
+          const auto& m = rows[i];
+          CHECK(m.taken_at == r.taken_at);
+          CHECK(m.ocv.has_value() == r.ocv.has_value());
+          if (m.ocv && r.ocv) CHECK(m.ocv->value == r.ocv->value);
+          REQUIRE(m.cell_sg.size() == r.cell_sg.size());
+          for (std::size_t c = 0; c < m.cell_sg.size(); ++c) CHECK(m.cell_sg[c].value == r.cell_sg[c].value);
+          CHECK(m.electrolyte.has_value() == r.electrolyte.has_value());
+          if (m.electrolyte && r.electrolyte) CHECK(m.electrolyte->value == r.electrolyte->value.value);
+          CHECK(m.rest.has_value() == r.rest.has_value());
+          CHECK(m.load_test_current.has_value() == r.load_test_current.has_value());
+          CHECK(m.load_test_end.has_value() == r.load_test_end.has_value());
+          if (m.load_test_end && r.load_test_end) CHECK(m.load_test_end->value == r.load_test_end->value);
+          CHECK(m.after_charge == r.after_charge);
+          CHECK(m.water_added == r.water_added);
+        }
+      });
+  REQUIRE(done.ok());
+  CHECK(index == expected.size());
+  CHECK(serials == std::vector<std::string>{"NY-0001", "NY-0002", "STOCK-9"});
+  const auto& newest = expected[0].readings.front();
+  CHECK(newest.after_charge);
+  CHECK(newest.electrolyte->value.value == doctest::Approx(-5));
+}
+
 TEST_CASE("the latest settled reading skips readings with too little rest") {
   Fleet f;
   auto rested = reading("s-1", "NY-0001", 1);

@@ -25,6 +25,27 @@ analytics::ReadingPoint point_of(const models::wire::ReadingInput& r) {
   return p;
 }
 
+analytics::ReadingPoint point_of(const storage::ReadingMeasurement& r) {
+  analytics::ReadingPoint p;
+  p.taken_at = r.taken_at;
+  if (r.ocv) p.ocv_v = r.ocv->value;
+  if (r.electrolyte) p.electrolyte_c = r.electrolyte->value;
+  if (r.rest) p.rest_h = r.rest->value;
+  if (r.load_test_current) p.load_test_a = r.load_test_current->value;
+  if (r.load_test_end) p.load_test_end_v = r.load_test_end->value;
+  p.cells = analytics::CellSgs(r.cell_sg);
+  p.after_charge = r.after_charge;
+  p.water_added = r.water_added;
+  return p;
+}
+
+void points_ascending(std::span<const storage::ReadingMeasurement> newest_first,
+                      std::vector<analytics::ReadingPoint>& points) {
+  points.clear();
+  for (auto it = newest_first.rbegin(); it != newest_first.rend(); ++it)
+    points.push_back(point_of(*it));
+}
+
 std::vector<analytics::ReadingPoint> points_ascending(
     const std::vector<storage::StoredReading>& newest_first) {
   std::vector<analytics::ReadingPoint> points;

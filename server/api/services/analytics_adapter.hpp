@@ -15,9 +15,13 @@ namespace pbfleet::api {
 models::BatterySpec spec_of(const storage::Battery& battery);
 // A reading as a compact analytics point (Celsius, raw SG per cell).
 analytics::ReadingPoint point_of(const models::wire::ReadingInput& reading);
+analytics::ReadingPoint point_of(const storage::ReadingMeasurement& reading);
 // Points of readings given newest first, returned oldest first.
 std::vector<analytics::ReadingPoint> points_ascending(
     const std::vector<storage::StoredReading>& newest_first);
+// Same, into `points` (cleared first; its capacity is reused).
+void points_ascending(std::span<const storage::ReadingMeasurement> newest_first,
+                      std::vector<analytics::ReadingPoint>& points);
 
 // Depots and vehicles by id, for building contexts.
 struct FleetIndex {

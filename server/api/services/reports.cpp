@@ -7,30 +7,25 @@ namespace pbfleet::api {
 
 namespace {
 
-// Batteries in service (of one depot) with their last `count` readings,
-// plus the depots and vehicles to build their contexts.
-struct Loaded {
-  FleetIndex index;
-  std::vector<storage::BatteryReadings> batteries;
-};
-
-storage::StoreResult<Loaded> load(storage::Store& store, std::optional<storage::Id> depot,
-                                  std::size_t count) {
+// Calls visit(history) for each battery in service (of one depot) with its
+// last `count` readings, oldest first, one battery at a time: only the
+// measured columns are read and one history buffer is reused, so a
+// five-year trend report never holds the fleet's readings at once.
+template <class Visit>
+storage::StoreResult<storage::Done> each_history(storage::Store& store,
+                                                 std::optional<storage::Id> depot,
+                                                 std::size_t count, Visit&& visit) {
   auto index = load_fleet_index(store);
   if (!index) return index.error();
   storage::BatteryFilter filter{depot, storage::BatteryStatus::in_service, std::nullopt};
-  auto batteries = store.last_readings(filter, count);
-  if (!batteries) return batteries.error();
-  return Loaded{std::move(index.value()), std::move(batteries.value())};
-}
-
-// Contexts and ascending histories for the trend reports.
-std::vector<analytics::BatteryHistory> histories(const Loaded& loaded) {
-  std::vector<analytics::BatteryHistory> out;
-  out.reserve(loaded.batteries.size());
-  for (const auto& b : loaded.batteries)
-    out.push_back({context_of(b.battery, loaded.index), points_ascending(b.readings), {}});
-  return out;
+  analytics::BatteryHistory history;
+  return store.visit_last_measurements(
+      filter, count,
+      [&](const storage::Battery& b, std::span<const storage::ReadingMeasurement> newest_first) {
+        history.battery = context_of(b, *index);
+        points_ascending(newest_first, history.readings);
+        visit(static_cast<const analytics::BatteryHistory&>(history));
+      });
 }
 
 }  // namespace
@@ -38,16 +33,13 @@ std::vector<analytics::BatteryHistory> histories(const Loaded& loaded) {
 storage::StoreResult<analytics::WinterReport> build_winter_report(
     storage::Store& store, std::optional<storage::Id> depot, const analytics::ColdSpec& cold,
     std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings) {
-  auto loaded = load(store, depot, kWinterLookback);
-  if (!loaded) return loaded.error();
   std::vector<analytics::BatteryContext> contexts;
   std::vector<std::vector<analytics::ReadingPoint>> points;
-  contexts.reserve(loaded->batteries.size());
-  points.reserve(loaded->batteries.size());
-  for (const auto& b : loaded->batteries) {
-    contexts.push_back(context_of(b.battery, loaded->index));
-    points.push_back(points_ascending(b.readings));
-  }
+  auto done = each_history(store, depot, kWinterLookback, [&](const analytics::BatteryHistory& h) {
+    contexts.push_back(h.battery);
+    points.push_back(h.readings);
+  });
+  if (!done) return done.error();
   std::vector<analytics::WinterInput> inputs;
   inputs.reserve(contexts.size());
   for (std::size_t i = 0; i < contexts.size(); ++i) inputs.push_back({&contexts[i], points[i]});
@@ -57,33 +49,41 @@ storage::StoreResult<analytics::WinterReport> build_winter_report(
 storage::StoreResult<std::vector<analytics::SulfationAssessment>> build_sulfation_report(
     storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
     const analytics::AnalyticsSettings& settings) {
-  auto loaded = load(store, depot, kTrendLookback);
-  if (!loaded) return loaded.error();
-  return analytics::sulfation_report(histories(*loaded), now, settings);
+  std::vector<analytics::SulfationAssessment> out;
+  auto done = each_history(store, depot, kTrendLookback, [&](const analytics::BatteryHistory& h) {
+    out.push_back(analytics::assess_sulfation(h, now, settings));
+  });
+  if (!done) return done.error();
+  analytics::sort_sulfation_report(out);
+  return out;
 }
 
 storage::StoreResult<std::vector<analytics::ReplacementForecast>> build_replacement_report(
     storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
     const analytics::AnalyticsSettings& settings) {
-  auto loaded = load(store, depot, kTrendLookback);
-  if (!loaded) return loaded.error();
-  return analytics::replacement_report(histories(*loaded), now, settings);
+  std::vector<analytics::ReplacementForecast> out;
+  auto done = each_history(store, depot, kTrendLookback, [&](const analytics::BatteryHistory& h) {
+    out.push_back(analytics::forecast_replacement(
+        h.battery, analytics::assess_sulfation(h, now, settings), now, settings));
+  });
+  if (!done) return done.error();
+  analytics::sort_for_budget(out);
+  return out;
 }
 
 storage::StoreResult<std::vector<analytics::DepotOverdue>> build_overdue_report(
     storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
     int days) {
-  auto loaded = load(store, depot, 1);
-  if (!loaded) return loaded.error();
   std::vector<analytics::BatteryContext> contexts;
-  contexts.reserve(loaded->batteries.size());
+  std::vector<std::optional<std::chrono::sys_seconds>> latest;
+  auto done = each_history(store, depot, 1, [&](const analytics::BatteryHistory& h) {
+    contexts.push_back(h.battery);
+    latest.push_back(h.readings.empty() ? std::nullopt : std::optional(h.readings.back().taken_at));
+  });
+  if (!done) return done.error();
   std::vector<analytics::LastSeen> fleet;
-  for (const auto& b : loaded->batteries) contexts.push_back(context_of(b.battery, loaded->index));
-  for (std::size_t i = 0; i < contexts.size(); ++i) {
-    const auto& readings = loaded->batteries[i].readings;
-    fleet.push_back({&contexts[i], readings.empty() ? std::nullopt
-                                                    : std::optional(readings.front().taken_at)});
-  }
+  fleet.reserve(contexts.size());
+  for (std::size_t i = 0; i < contexts.size(); ++i) fleet.push_back({&contexts[i], latest[i]});
   return analytics::overdue_report(fleet, now, days);
 }
 
