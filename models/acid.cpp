@@ -86,15 +86,18 @@ Error sg_range_error(SpecificGravity sg) {
 Result<WeightPercent> weight_percent_from_sg(SpecificGravity sg25) {
   if (!(sg25 >= kMinTableSg && sg25 <= kMaxTableSg)) return sg_range_error(sg25);
   const auto& curve = sg_curve();
-  const auto w = detail::solve_increasing([&](double x) { return curve(x); }, curve.front(),
-                                          curve.back(), sg25.value);
+  // Solved on the one PCHIP piece that holds the root (the curve is
+  // monotone): a few iterations instead of a search across the table.
+  const auto [lo, hi] = curve.bracket_of_value(sg25.value);
+  const auto w = detail::solve_increasing([&](double x) { return curve(x); }, lo, hi, sg25.value);
   assert(w.has_value());  // kMin/kMaxTableSg lie inside the curve's range
   return WeightPercent{*w};
 }
 
 Result<SpecificGravity> sg_from_weight_percent(WeightPercent w) {
   const auto& curve = sg_curve();
-  const double w_max = weight_percent_from_sg(kMaxTableSg).value().value;
+  // Solved once: the table's top SG as weight percent.
+  static const double w_max = weight_percent_from_sg(kMaxTableSg).value().value;
   if (!(w.value >= curve.front() && w.value <= w_max)) {
     return Error{"wt_percent",
                  "weight percent " + detail::fixed(w.value, 2) +

@@ -74,6 +74,13 @@ double MonotoneCubic::operator()(double x) const {
   return h00 * ys_[i] + h10 * h * slopes_[i] + h01 * ys_[i + 1] + h11 * h * slopes_[i + 1];
 }
 
+std::pair<double, double> MonotoneCubic::bracket_of_value(double y) const {
+  assert(y >= ys_.front() && y <= ys_.back());
+  const auto it = std::upper_bound(ys_.begin(), ys_.end(), y);
+  const auto hi = it == ys_.end() ? ys_.size() - 1 : static_cast<std::size_t>(it - ys_.begin());
+  return {xs_[hi - 1], xs_[hi]};
+}
+
 double linear_clamped(std::span<const double> xs, std::span<const double> ys, double x) {
   assert(!xs.empty() && xs.size() == ys.size());
   if (x <= xs.front()) return ys.front();

@@ -11,6 +11,7 @@
 #pragma once
 
 #include <span>
+#include <utility>
 #include <vector>
 
 namespace pbfleet::models::detail {
@@ -23,6 +24,11 @@ class MonotoneCubic {
   // Value at x. REQUIRES: front() <= x <= back() (callers check the range
   // and report it as an Error; asserted here).
   [[nodiscard]] double operator()(double x) const;
+
+  // For increasing data: the node interval [x_i, x_i+1] whose values
+  // bracket y (a root bracket for inverting the curve, one piece wide).
+  // REQUIRES: ys increasing, ys.front() <= y <= ys.back().
+  [[nodiscard]] std::pair<double, double> bracket_of_value(double y) const;
 
   [[nodiscard]] double front() const { return xs_.front(); }
   [[nodiscard]] double back() const { return xs_.back(); }

@@ -38,9 +38,11 @@
 // R and F: CODATA 2018 exact values (nernst.hpp).
 #include "models/nernst.hpp"
 
+#include <algorithm>
 #include <array>
 #include <cassert>
 #include <cmath>
+#include <vector>
 
 #include "models/acid.hpp"
 #include "models/interpolate.hpp"
@@ -124,12 +126,78 @@ double emf_25(Molality m) {
   return bode_cell_ocv(m) + offset;
 }
 
-double emf_at(Molality m, Celsius t) {
-  return emf_25(m) + kCellEmfTemperatureCoefficientVPerK * (t.value - 25.0);
+double shifted_to(double emf_at_25, Celsius t) {
+  return emf_at_25 + kCellEmfTemperatureCoefficientVPerK * (t.value - 25.0);
 }
+
+double emf_at(Molality m, Celsius t) { return shifted_to(emf_25(m), t); }
 
 bool temperature_in_range(Celsius t) {
   return t >= kMinModelTemperature && t <= kMaxModelTemperature;
+}
+
+// ---- tabulated inverse ------------------------------------------------------
+//
+// Between two knots of emf_25 (the 14 activity molalities and 8 mol/kg) the
+// curve is smooth, so a cubic Hermite piece in e with exact end slopes
+// converges as h^4; across a knot only the slope jumps, and a knot is
+// always a node, so no piece straddles one.
+
+struct InverseSegment {
+  double e0, e1;    // EMF at 25 degC at the ends (V)
+  double x0, x1;    // ln m at the ends
+  double d0, d1;    // d(ln m)/de at the ends, from inside the segment
+};
+
+// d emf_25 / d ln m at x from inside [lo, hi] (one-sided second-order
+// differences at the ends, central inside), so a slope never mixes the
+// two sides of a knot.
+double emf_slope(double x, double lo, double hi) {
+  const double h = 1e-5 * (hi - lo);
+  const auto e = [](double ln_m) { return emf_25(Molality{std::exp(ln_m)}); };
+  if (x - h < lo) return (-3.0 * e(x) + 4.0 * e(x + h) - e(x + 2.0 * h)) / (2.0 * h);
+  if (x + h > hi) return (3.0 * e(x) - 4.0 * e(x - h) + e(x - 2.0 * h)) / (2.0 * h);
+  return (e(x + h) - e(x - h)) / (2.0 * h);
+}
+
+std::vector<InverseSegment> build_inverse_table() {
+  std::vector<double> knots(kMolality.begin(), kMolality.end());
+  knots.push_back(kMaxModelMolality.value);
+  std::vector<InverseSegment> table;
+  for (std::size_t k = 0; k + 1 < knots.size(); ++k) {
+    const double lo = std::log(knots[k]), hi = std::log(knots[k + 1]);
+    for (int j = 0; j < kEmfInverseNodesPerPiece; ++j) {
+      const double x0 = j == 0 ? lo : lo + (hi - lo) * j / kEmfInverseNodesPerPiece;
+      const double x1 = j + 1 == kEmfInverseNodesPerPiece
+                            ? hi
+                            : lo + (hi - lo) * (j + 1) / kEmfInverseNodesPerPiece;
+      // End points at the knots use the exact molalities, so the table
+      // spans exactly emf_25(kMinModelMolality) .. emf_25(kMaxModelMolality).
+      const double m0 = j == 0 ? knots[k] : std::exp(x0);
+      const double m1 = j + 1 == kEmfInverseNodesPerPiece ? knots[k + 1] : std::exp(x1);
+      table.push_back({emf_25(Molality{m0}), emf_25(Molality{m1}), x0, x1,
+                       1.0 / emf_slope(x0, lo, hi), 1.0 / emf_slope(x1, lo, hi)});
+    }
+  }
+  return table;
+}
+
+const std::vector<InverseSegment>& inverse_table() {
+  static const std::vector<InverseSegment> table = build_inverse_table();
+  return table;
+}
+
+// ln m at 25 degC EMF e. REQUIRES: e within the table (clamped otherwise).
+double ln_molality_at(double e) {
+  const auto& table = inverse_table();
+  const auto it = std::upper_bound(table.begin(), table.end(), e,
+                                   [](double v, const InverseSegment& s) { return v < s.e1; });
+  const InverseSegment& s = it == table.end() ? table.back() : *it;
+  const double h = s.e1 - s.e0;
+  const double u = std::clamp((e - s.e0) / h, 0.0, 1.0);
+  const double u2 = u * u, u3 = u2 * u;
+  return (2 * u3 - 3 * u2 + 1) * s.x0 + (u3 - 2 * u2 + u) * h * s.d0 + (-2 * u3 + 3 * u2) * s.x1 +
+         (u3 - u2) * h * s.d1;
 }
 
 Error temperature_error(Celsius t) {
@@ -163,6 +231,11 @@ Result<Volts> cell_emf(Molality m, Celsius t) {
   }
   if (!temperature_in_range(t)) return temperature_error(t);
   return Volts{emf_at(m, t)};
+}
+
+Result<Volts> cell_emf_at(Volts emf_25, Celsius t) {
+  if (!temperature_in_range(t)) return temperature_error(t);
+  return Volts{shifted_to(emf_25.value, t)};
 }
 
 Result<Volts> cell_emf_from_sg(SpecificGravity sg25, Celsius t) {
@@ -200,9 +273,23 @@ Result<Molality> molality_from_cell_emf(Volts cell, Celsius t) {
   return Molality{*m};
 }
 
+Result<Molality> molality_from_cell_emf_tabulated(Volts cell, Celsius t) {
+  if (!temperature_in_range(t)) return temperature_error(t);
+  // The range test of the exact solver, with the same arithmetic
+  // (emf_at at the model's ends; the table's ends are those EMFs).
+  const auto& table = inverse_table();
+  const double lo = shifted_to(table.front().e0, t), hi = shifted_to(table.back().e1, t);
+  const double shift = kCellEmfTemperatureCoefficientVPerK * (t.value - 25.0);
+  if (cell.value == lo) return kMinModelMolality;
+  if (cell.value == hi) return kMaxModelMolality;
+  if (!(cell.value > lo && cell.value < hi)) return molality_from_cell_emf(cell, t).error();
+  const double m = std::exp(ln_molality_at(cell.value - shift));
+  return Molality{std::clamp(m, kMinModelMolality.value, kMaxModelMolality.value)};
+}
+
 Result<SpecificGravity> sg_from_ocv(Volts ocv, int cells, Celsius t) {
   assert(cells >= 1);
-  const auto m = molality_from_cell_emf(Volts{ocv.value / cells}, t);
+  const auto m = molality_from_cell_emf_tabulated(Volts{ocv.value / cells}, t);
   if (!m) {
     if (m.error().field != "cell_emf_v") return m.error();
     const double lo = emf_at(kMinModelMolality, t) * cells;

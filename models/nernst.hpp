@@ -42,6 +42,10 @@ Result<double> water_activity(Molality m);
 
 // Cell EMF (V) at molality m and electrolyte temperature t.
 Result<Volts> cell_emf(Molality m, Celsius t);
+// Cell EMF (V) at temperature t of a cell whose EMF at 25 degC is
+// `emf_25`: the model's linear temperature law, with the same arithmetic as
+// cell_emf (so cell_emf(m, t) == cell_emf_at(cell_emf(m, 25 degC), t)).
+Result<Volts> cell_emf_at(Volts emf_25, Celsius t);
 // Cell EMF (V) from SG 25/25 and electrolyte temperature.
 Result<Volts> cell_emf_from_sg(SpecificGravity sg25, Celsius t);
 // Open-circuit voltage of `cells` cells in series (V).
@@ -51,7 +55,17 @@ Volts battery_ocv(Volts cell_emf, int cells);
 // bracketed monotone solver. Error when no concentration in the model range
 // produces that EMF.
 Result<Molality> molality_from_cell_emf(Volts cell, Celsius t);
-// Inverse model to SG 25/25: battery OCV of `cells` cells at temperature t.
+// The same inverse from a table built once: ln m against the 25 degC EMF,
+// every knot of the activity table and the 6 mol/kg branch joint a node
+// (kEmfInverseNodesPerPiece nodes between knots), cubic Hermite
+// interpolation with the curve's own slopes. Same range and errors as
+// molality_from_cell_emf; differs from it by less than
+// kEmfInverseMaxRelativeError (tested against it). About 30 times cheaper.
+Result<Molality> molality_from_cell_emf_tabulated(Volts cell, Celsius t);
+inline constexpr int kEmfInverseNodesPerPiece = 64;
+inline constexpr double kEmfInverseMaxRelativeError = 1e-9;
+// Inverse model to SG 25/25: battery OCV of `cells` cells at temperature t
+// (through molality_from_cell_emf_tabulated: reports derive it per reading).
 Result<SpecificGravity> sg_from_ocv(Volts ocv, int cells, Celsius t);
 
 }  // namespace pbfleet::models

@@ -260,6 +260,53 @@ TEST_CASE("inverse from battery OCV returns the SG within 1e-6") {
   }
 }
 
+TEST_CASE("the tabulated inverse stays within its stated error of the exact solve") {
+  // Every EMF the model produces, densest near the knots (0.1..6 mol/kg
+  // table rows, the 6 mol/kg branch joint) where the slope jumps, at
+  // temperatures across the model range. Bound: kEmfInverseMaxRelativeError
+  // (1e-9 relative in molality, about 1e-10 in SG: far below a hydrometer's
+  // 0.001 and the model's own +/-2 mV).
+  double worst = 0.0;
+  for (const double t : {-40.0, -18.0, 0.0, 25.0, 60.0}) {
+    const double lo = emf(0.1, t), hi = emf(8.0, t);
+    for (int i = 0; i <= 20000; ++i) {
+      const double cell = lo + (hi - lo) * i / 20000.0;
+      const auto exact = molality_from_cell_emf(Volts{cell}, Celsius{t});
+      const auto table = molality_from_cell_emf_tabulated(Volts{cell}, Celsius{t});
+      REQUIRE(exact.ok());
+      REQUIRE(table.ok());
+      worst = std::max(worst, std::abs(table->value - exact->value) / exact->value);
+    }
+    for (const double knot : {0.1, 0.2, 0.5, 1.0, 1.5, 2.0, 3.0, 4.5, 5.5, 6.0, 8.0}) {
+      for (const double f : {0.999999, 1.0, 1.000001}) {
+        const double m = std::clamp(knot * f, 0.1, 8.0);
+        const auto table = molality_from_cell_emf_tabulated(Volts{emf(m, t)}, Celsius{t});
+        REQUIRE(table.ok());
+        worst = std::max(worst, std::abs(table->value - m) / m);
+      }
+    }
+  }
+  MESSAGE("largest relative error of the tabulated inverse: " << worst);
+  CHECK(worst < kEmfInverseMaxRelativeError);
+}
+
+TEST_CASE("the tabulated inverse refuses exactly what the exact solve refuses") {
+  for (const double t : {-18.0, 25.0}) {
+    const double lo = emf(0.1, t), hi = emf(8.0, t);
+    for (const double cell : {lo - 1e-3, lo, hi, hi + 1e-3, 1.0, 2.5}) {
+      const auto exact = molality_from_cell_emf(Volts{cell}, Celsius{t});
+      const auto table = molality_from_cell_emf_tabulated(Volts{cell}, Celsius{t});
+      CHECK(exact.ok() == table.ok());
+      if (!exact.ok() && !table.ok()) {
+        CHECK(table.error().field == exact.error().field);
+        CHECK(table.error().allowed == exact.error().allowed);
+      }
+    }
+  }
+  CHECK(molality_from_cell_emf_tabulated(Volts{2.0}, Celsius{90.0}).error().field ==
+        "electrolyte_temp_c");
+}
+
 TEST_CASE("an OCV no acid concentration can produce is an error naming ocv_v") {
   for (const double ocv : {9.0, 10.5, 13.5}) {
     const auto sg = sg_from_ocv(Volts{ocv}, 6, k25);
