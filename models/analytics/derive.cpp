@@ -68,17 +68,31 @@ void judge_spread(const SgPart& sg, const AnalyticsSettings& s, bool hold, Deriv
   if (spread.weak_cell) d.weak_cell = *spread.weak_cell + 1;
 }
 
-// Model OCV of a fully charged battery of this spec at temperature t.
-std::optional<double> full_charge_ocv(const models::BatterySpec& spec, Celsius t) {
-  const auto emf = models::cell_emf_from_sg(spec.full_charge_sg, t);
+// What derive needs of a spec beyond its fields, the same for every
+// reading of a battery: the model's full-charge cell EMF at 25 degC (an
+// inverse acid-density solve), worked out once per history by derive_all.
+struct SpecModel {
+  std::optional<double> full_emf_25;  // nullopt: full-charge SG outside the cell model
+};
+
+SpecModel spec_model(const models::BatterySpec& spec) {
+  const auto emf = models::cell_emf_from_sg(spec.full_charge_sg, Celsius{25.0});
+  return SpecModel{emf ? std::optional(emf->value) : std::nullopt};
+}
+
+// Model OCV of a fully charged battery of this spec at temperature t
+// (cell_emf_from_sg(full SG, t), through the once-computed 25 degC EMF).
+std::optional<double> full_charge_ocv(const models::BatterySpec& spec, const SpecModel& model, Celsius t) {
+  if (!model.full_emf_25) return std::nullopt;
+  const auto emf = models::cell_emf_at(models::Volts{*model.full_emf_25}, t);
   if (!emf) return std::nullopt;
   return models::battery_ocv(*emf, spec.cells).value;
 }
 
-bool suspect_surface_charge(const ReadingPoint& r, const models::BatterySpec& spec, Celsius t,
-                            const AnalyticsSettings& s, const DerivedReading& d) {
+bool suspect_surface_charge(const ReadingPoint& r, const models::BatterySpec& spec, const SpecModel& model,
+                            Celsius t, const AnalyticsSettings& s, const DerivedReading& d) {
   const double ocv = r.ocv_v.value();
-  const auto full = full_charge_ocv(spec, t);
+  const auto full = full_charge_ocv(spec, model, t);
   if (full && ocv > *full + kSurfaceChargeMarginPerCellV * spec.cells) return true;
   if (d.ocv_settled.value_or(true)) return false;
   if (r.after_charge) return true;
@@ -86,7 +100,7 @@ bool suspect_surface_charge(const ReadingPoint& r, const models::BatterySpec& sp
          *d.soc_from_ocv_percent - *d.soc_from_sg_percent > s.soc_disagreement_pct;
 }
 
-void derive_ocv(const ReadingPoint& r, const models::BatterySpec& spec, Celsius t,
+void derive_ocv(const ReadingPoint& r, const models::BatterySpec& spec, const SpecModel& model, Celsius t,
                 const AnalyticsSettings& s, DerivedReading& d) {
   const auto rest = r.rest_h.get();
   const bool settled = rest && models::ocv_is_settled(models::Hours{*rest}, s.settled_rest);
@@ -98,7 +112,7 @@ void derive_ocv(const ReadingPoint& r, const models::BatterySpec& spec, Celsius 
   } else {
     d.flags.set(Flag::ocv_out_of_range);
   }
-  if (suspect_surface_charge(r, spec, t, s, d)) d.flags.set(Flag::surface_charge_suspected);
+  if (suspect_surface_charge(r, spec, model, t, s, d)) d.flags.set(Flag::surface_charge_suspected);
 }
 
 void combine(const AnalyticsSettings& s, DerivedReading& d) {
@@ -176,8 +190,10 @@ std::vector<std::string_view> FlagSet::words() const {
   return out;
 }
 
-DerivedReading derive(const ReadingPoint& r, const models::BatterySpec& spec,
-                      const AnalyticsSettings& s, bool water_hold) {
+namespace {
+
+DerivedReading derive_with(const ReadingPoint& r, const models::BatterySpec& spec, const SpecModel& model,
+                           const AnalyticsSettings& s, bool water_hold) {
   DerivedReading d;
   const bool measured_something = !r.cells.empty() || r.ocv_v;
   if (r.electrolyte_c) {
@@ -197,7 +213,7 @@ DerivedReading derive(const ReadingPoint& r, const models::BatterySpec& spec,
     }
     judge_spread(sg, s, water_hold || r.water_added, d);
   }
-  if (r.ocv_v) derive_ocv(r, spec, t, s, d);
+  if (r.ocv_v) derive_ocv(r, spec, model, t, s, d);
   combine(s, d);
   derive_sg_equivalent(r, spec, t, sg, d);
   if (d.soc_percent && *d.soc_percent < undercharge_threshold_pct(s, spec.chemistry)) {
@@ -209,16 +225,24 @@ DerivedReading derive(const ReadingPoint& r, const models::BatterySpec& spec,
   return d;
 }
 
+}  // namespace
+
+DerivedReading derive(const ReadingPoint& r, const models::BatterySpec& spec,
+                      const AnalyticsSettings& s, bool water_hold) {
+  return derive_with(r, spec, spec_model(spec), s, water_hold);
+}
+
 std::vector<DerivedReading> derive_all(std::span<const ReadingPoint> readings,
                                        const models::BatterySpec& spec,
                                        const AnalyticsSettings& settings) {
   std::vector<DerivedReading> out;
   out.reserve(readings.size());
+  const SpecModel model = spec_model(spec);
   bool hold = false;
   for (const auto& r : readings) {
     if (r.after_charge) hold = false;  // charging mixes the watered cell
     if (r.water_added) hold = true;
-    out.push_back(derive(r, spec, settings, hold));
+    out.push_back(derive_with(r, spec, model, settings, hold));
   }
   return out;
 }
