@@ -164,8 +164,9 @@ TEST_CASE("a depot-scoped token sees other depots' objects exactly as missing on
   // Lists hold only the token's depot.
   auto batteries = tech.get("/v1/batteries?limit=100");
   REQUIRE(batteries.status == 200);
-  for (const auto& b : batteries.json()["items"]) CHECK(b["serial"].get<std::string>().rfind("NY-", 0) == 0);
-  CHECK(batteries.json()["items"].size() == 2);
+  const auto listed = batteries.json();  // a local: the loop must not walk a temporary's member
+  for (const auto& b : listed["items"]) CHECK(b["serial"].get<std::string>().rfind("NY-", 0) == 0);
+  CHECK(listed["items"].size() == 2);
 
   SqliteProbe db(fleet.db());
   CHECK(db.integer("SELECT count(*) FROM readings") == 0);
