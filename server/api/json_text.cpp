@@ -91,38 +91,48 @@ void append_json_number(std::string& out, double number) {
   if (text.find_first_of(".e") == std::string_view::npos) out += ".0";
 }
 
-void JsonText::separate() {
+namespace {
+
+template <class Integer>
+void append_integer(std::string& out, Integer number) {
+  char buf[24];
+  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, number);
+  out.append(buf, end);
+}
+
+}  // namespace
+
+// Every token goes through one of these three: a value (comma before it when
+// one is due), an opening bracket or a key (nothing may follow without a
+// value), a closing bracket (a comma is due after it).
+template <class Write>
+JsonText& JsonText::put_value(Write write) {
   if (need_comma_) out_ += ',';
-}
-
-JsonText& JsonText::begin_object() {
-  separate();
-  out_ += '{';
-  need_comma_ = false;
-  return *this;
-}
-
-JsonText& JsonText::end_object() {
-  out_ += '}';
+  write(out_);
   need_comma_ = true;
   return *this;
 }
 
-JsonText& JsonText::begin_array() {
-  separate();
-  out_ += '[';
+JsonText& JsonText::open(char bracket) {
+  if (need_comma_) out_ += ',';
+  out_ += bracket;
   need_comma_ = false;
   return *this;
 }
 
-JsonText& JsonText::end_array() {
-  out_ += ']';
+JsonText& JsonText::close(char bracket) {
+  out_ += bracket;
   need_comma_ = true;
   return *this;
 }
+
+JsonText& JsonText::begin_object() { return open('{'); }
+JsonText& JsonText::end_object() { return close('}'); }
+JsonText& JsonText::begin_array() { return open('['); }
+JsonText& JsonText::end_array() { return close(']'); }
 
 JsonText& JsonText::key(std::string_view name) {
-  separate();
+  if (need_comma_) out_ += ',';
   append_json_string(out_, name);
   out_ += ':';
   need_comma_ = false;
@@ -130,49 +140,27 @@ JsonText& JsonText::key(std::string_view name) {
 }
 
 JsonText& JsonText::value(std::string_view text) {
-  separate();
-  append_json_string(out_, text);
-  need_comma_ = true;
-  return *this;
+  return put_value([&](std::string& out) { append_json_string(out, text); });
 }
 
 JsonText& JsonText::value(double number) {
-  separate();
-  append_json_number(out_, number);
-  need_comma_ = true;
-  return *this;
+  return put_value([&](std::string& out) { append_json_number(out, number); });
 }
 
 JsonText& JsonText::value(std::int64_t number) {
-  separate();
-  char buf[24];
-  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, number);
-  out_.append(buf, end);
-  need_comma_ = true;
-  return *this;
+  return put_value([&](std::string& out) { append_integer(out, number); });
 }
 
 JsonText& JsonText::value(std::uint64_t number) {
-  separate();
-  char buf[24];
-  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, number);
-  out_.append(buf, end);
-  need_comma_ = true;
-  return *this;
+  return put_value([&](std::string& out) { append_integer(out, number); });
 }
 
 JsonText& JsonText::value(bool flag) {
-  separate();
-  out_ += flag ? "true" : "false";
-  need_comma_ = true;
-  return *this;
+  return put_value([&](std::string& out) { out += flag ? "true" : "false"; });
 }
 
 JsonText& JsonText::null() {
-  separate();
-  out_ += "null";
-  need_comma_ = true;
-  return *this;
+  return put_value([](std::string& out) { out += "null"; });
 }
 
 JsonText& JsonText::value(const std::vector<double>& numbers) {

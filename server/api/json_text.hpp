@@ -50,7 +50,10 @@ class JsonText {
   }
 
  private:
-  void separate();
+  template <class Write>
+  JsonText& put_value(Write write);
+  JsonText& open(char bracket);
+  JsonText& close(char bracket);
 
   std::string& out_;
   bool need_comma_ = false;

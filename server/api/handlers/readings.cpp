@@ -95,12 +95,13 @@ http::Response refused_rows(const storage::AppendOutcome& outcome, const FieldNa
   return problem(ProblemKind::validation_failed, "batch refused; nothing was stored", fields);
 }
 
-// The 201/200 body: every reading as stored, with its derived values.
-std::string stored_body(const storage::AppendOutcome& outcome,
-                        const std::map<std::string, storage::Battery>& batteries) {
-  const analytics::AnalyticsSettings settings;
+// {"stored":N,"replayed":M,"readings":[{...}]}, each reading's members
+// written by `members(out, index, replayed)`.
+template <class Members>
+std::string outcome_body(const storage::AppendOutcome& outcome, std::size_t bytes_per_reading,
+                         Members members) {
   std::string body;
-  body.reserve(160 + outcome.readings.size() * 900);
+  body.reserve(64 + outcome.readings.size() * bytes_per_reading);
   JsonText out(body);
   out.begin_object()
       .member("stored", outcome.stored)
@@ -108,39 +109,35 @@ std::string stored_body(const storage::AppendOutcome& outcome,
       .key("readings")
       .begin_array();
   for (std::size_t i = 0; i < outcome.readings.size(); ++i) {
-    const auto& r = outcome.readings[i];
     out.begin_object();
-    write_reading_members(out, r);
-    out.member("replayed", i < outcome.replayed.size() && outcome.replayed[i]);
-    if (auto b = batteries.find(r.serial); b != batteries.end()) {
-      out.key("derived");
-      write_derived(out, analytics::derive(point_of(r), spec_of(b->second), settings));
-    }
+    members(out, i, i < outcome.replayed.size() && outcome.replayed[i]);
     out.end_object();
   }
   out.end_array().end_object();
   return body;
 }
 
+// The 201/200 body: every reading as stored, with its derived values.
+std::string stored_body(const storage::AppendOutcome& outcome,
+                        const std::map<std::string, storage::Battery>& batteries) {
+  const analytics::AnalyticsSettings settings;
+  return outcome_body(outcome, 900, [&](JsonText& out, std::size_t i, bool replayed) {
+    const auto& r = outcome.readings[i];
+    write_reading_members(out, r);
+    out.member("replayed", replayed);
+    if (auto b = batteries.find(r.serial); b != batteries.end()) {
+      out.key("derived");
+      write_derived(out, analytics::derive(point_of(r), spec_of(b->second), settings));
+    }
+  });
+}
+
 // The body asked for with "Prefer: return=minimal" (RFC 7240): the counts
 // and each reading's id, for bulk clients that keep what they sent.
 std::string minimal_body(const storage::AppendOutcome& outcome) {
-  std::string body;
-  body.reserve(64 + outcome.readings.size() * 48);
-  JsonText out(body);
-  out.begin_object()
-      .member("stored", outcome.stored)
-      .member("replayed", outcome.replayed_count)
-      .key("readings")
-      .begin_array();
-  for (std::size_t i = 0; i < outcome.readings.size(); ++i) {
-    out.begin_object()
-        .member("reading_id", outcome.readings[i].reading_id)
-        .member("replayed", i < outcome.replayed.size() && outcome.replayed[i])
-        .end_object();
-  }
-  out.end_array().end_object();
-  return body;
+  return outcome_body(outcome, 48, [&](JsonText& out, std::size_t i, bool replayed) {
+    out.member("reading_id", outcome.readings[i].reading_id).member("replayed", replayed);
+  });
 }
 
 }  // namespace

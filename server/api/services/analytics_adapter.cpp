@@ -11,11 +11,15 @@ models::BatterySpec spec_of(const storage::Battery& b) {
   return spec;
 }
 
-analytics::ReadingPoint point_of(const models::wire::ReadingInput& r) {
+namespace {
+
+// The fields both reading shapes share; the electrolyte in Celsius given.
+template <class Reading>
+analytics::ReadingPoint point_with(const Reading& r, std::optional<double> electrolyte_c) {
   analytics::ReadingPoint p;
   p.taken_at = r.taken_at;
   if (r.ocv) p.ocv_v = r.ocv->value;
-  if (r.electrolyte) p.electrolyte_c = r.electrolyte->value.value;
+  if (electrolyte_c) p.electrolyte_c = *electrolyte_c;
   if (r.rest) p.rest_h = r.rest->value;
   if (r.load_test_current) p.load_test_a = r.load_test_current->value;
   if (r.load_test_end) p.load_test_end_v = r.load_test_end->value;
@@ -25,18 +29,14 @@ analytics::ReadingPoint point_of(const models::wire::ReadingInput& r) {
   return p;
 }
 
+}  // namespace
+
+analytics::ReadingPoint point_of(const models::wire::ReadingInput& r) {
+  return point_with(r, r.electrolyte ? std::optional<double>(r.electrolyte->value.value) : std::nullopt);
+}
+
 analytics::ReadingPoint point_of(const storage::ReadingMeasurement& r) {
-  analytics::ReadingPoint p;
-  p.taken_at = r.taken_at;
-  if (r.ocv) p.ocv_v = r.ocv->value;
-  if (r.electrolyte) p.electrolyte_c = r.electrolyte->value;
-  if (r.rest) p.rest_h = r.rest->value;
-  if (r.load_test_current) p.load_test_a = r.load_test_current->value;
-  if (r.load_test_end) p.load_test_end_v = r.load_test_end->value;
-  p.cells = analytics::CellSgs(r.cell_sg);
-  p.after_charge = r.after_charge;
-  p.water_added = r.water_added;
-  return p;
+  return point_with(r, r.electrolyte ? std::optional<double>(r.electrolyte->value) : std::nullopt);
 }
 
 void points_ascending(std::span<const storage::ReadingMeasurement> newest_first,
