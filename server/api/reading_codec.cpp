@@ -56,25 +56,6 @@ void read_times(FieldReader& in, wire::ReadingInput& r) {
   }
 }
 
-template <class T>
-json optional_value(const std::optional<T>& v) {
-  return v ? json(v->value) : json(nullptr);
-}
-
-json temperature_json(const std::optional<wire::EnteredTemperature>& t) {
-  return t ? json(t->value.value) : json(nullptr);
-}
-
-json unit_json(const std::optional<wire::EnteredTemperature>& t) {
-  if (!t) return nullptr;
-  return t->unit == wire::TempUnit::f ? "F" : "C";
-}
-
-template <class T>
-json optional_json(const std::optional<T>& v) {
-  return v ? json(*v) : json(nullptr);
-}
-
 }  // namespace
 
 wire::ReadingInput read_reading(FieldReader& in) {
@@ -99,54 +80,6 @@ wire::ReadingInput read_reading(FieldReader& in) {
   if (auto v = in.boolean("water_added", false)) r.water_added = *v;
   in.finish();
   return r;
-}
-
-json reading_json(const wire::ReadingInput& r) {
-  json cells = json::array();
-  for (const auto& sg : r.cell_sg) cells.push_back(sg.value);
-  return {{"reading_id", r.reading_id},
-          {"serial", r.serial},
-          {"taken_at", wire::format_timestamp(r.taken_at)},
-          {"ocv_v", optional_value(r.ocv)},
-          {"cell_sg", std::move(cells)},
-          {"electrolyte_temp_c", temperature_json(r.electrolyte)},
-          {"electrolyte_temp_unit", unit_json(r.electrolyte)},
-          {"ambient_temp_c", temperature_json(r.ambient)},
-          {"ambient_temp_unit", unit_json(r.ambient)},
-          {"rest_h", optional_value(r.rest)},
-          {"load_test_a", optional_value(r.load_test_current)},
-          {"load_test_end_v", optional_value(r.load_test_end)},
-          {"logged_by", r.logged_by},
-          {"source", r.source},
-          {"note", r.note},
-          {"after_charge", r.after_charge},
-          {"water_added", r.water_added}};
-}
-
-json reading_json(const storage::StoredReading& r) {
-  json j = reading_json(static_cast<const wire::ReadingInput&>(r));
-  j["received_at"] = wire::format_timestamp(r.received_at);
-  return j;
-}
-
-json derived_json(const analytics::DerivedReading& d) {
-  json flags = json::array();
-  for (auto word : d.flags.words()) flags.push_back(word);
-  return {{"electrolyte_c", d.electrolyte_c},
-          {"corrected_sg", optional_json(d.corrected_sg)},
-          {"corrected_cell_sg", d.corrected_cell_sg},
-          {"soc_from_sg_percent", optional_json(d.soc_from_sg_percent)},
-          {"soc_from_ocv_percent", optional_json(d.soc_from_ocv_percent)},
-          {"ocv_settled", optional_json(d.ocv_settled)},
-          {"soc_percent", optional_json(d.soc_percent)},
-          {"soc_uncertainty_percent", d.soc_uncertainty_percent},
-          {"sg_equivalent", optional_json(d.sg_equivalent)},
-          {"freezing_point_c", optional_json(d.freezing_point_c)},
-          {"cell_spread", optional_json(d.cell_spread)},
-          {"weak_cell", optional_json(d.weak_cell)},
-          {"load_test_min_v", optional_json(d.load_test_min_v)},
-          {"trusted", d.trusted},
-          {"flags", std::move(flags)}};
 }
 
 namespace {

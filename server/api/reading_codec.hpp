@@ -17,14 +17,9 @@ namespace pbfleet::api {
 // Fields of one reading object (pointer prefix from `in`).
 models::wire::ReadingInput read_reading(FieldReader& in);
 
-// The raw reading as stored; temperatures in Celsius plus the unit entered.
-nlohmann::json reading_json(const models::wire::ReadingInput& reading);
-nlohmann::json reading_json(const storage::StoredReading& reading);
-// The derived values of one reading.
-nlohmann::json derived_json(const analytics::DerivedReading& derived);
-
-// The same, written as text: the members of a reading (inside an object
-// the caller opened; received_at when stored) and the derived object.
+// The raw reading as stored, written as the members of an object the
+// caller opened (temperatures in Celsius plus the unit entered; received_at
+// when stored), and the derived values as an object.
 void write_reading_members(JsonText& out, const models::wire::ReadingInput& reading);
 void write_reading_members(JsonText& out, const storage::StoredReading& reading);
 void write_derived(JsonText& out, const analytics::DerivedReading& derived);
