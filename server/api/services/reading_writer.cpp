@@ -6,7 +6,11 @@
 namespace pbfleet::api {
 
 ReadingWriter::ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options)
-    : store_(store), clock_(clock), options_(options), thread_([this] { run(); }) {}
+    : store_(store),
+      clock_(clock),
+      options_(options),
+      acknowledger_([this] { acknowledge(); }),
+      thread_([this] { run(); }) {}
 
 ReadingWriter::~ReadingWriter() {
   {
@@ -14,7 +18,13 @@ ReadingWriter::~ReadingWriter() {
     stopping_ = true;
   }
   wake_.notify_one();
-  thread_.join();
+  thread_.join();  // drained: every group is committed and handed over
+  {
+    std::lock_guard lock(ack_mutex_);
+    writer_done_ = true;
+  }
+  ack_wake_.notify_one();
+  acknowledger_.join();
 }
 
 bool ReadingWriter::submit(Batch batch, Done done) {
@@ -64,12 +74,30 @@ void ReadingWriter::commit(std::vector<Pending>& group) {
     std::lock_guard lock(mutex_);
     ++commits_;
   }
-  for (std::size_t i = 0; i < group.size(); ++i) {
-    if (!result) {
-      group[i].done(result.error());
-    } else {
-      group[i].done(std::move(result.value()[i]));
+  {
+    std::lock_guard lock(ack_mutex_);
+    for (std::size_t i = 0; i < group.size(); ++i) {
+      if (!result) {
+        acks_.push_back({std::move(group[i].done), result.error()});
+      } else {
+        acks_.push_back({std::move(group[i].done), std::move(result.value()[i])});
+      }
     }
+  }
+  ack_wake_.notify_one();
+}
+
+void ReadingWriter::acknowledge() {
+  std::deque<Acknowledgement> ready;
+  for (;;) {
+    {
+      std::unique_lock lock(ack_mutex_);
+      ack_wake_.wait(lock, [this] { return writer_done_ || !acks_.empty(); });
+      if (acks_.empty()) return;  // the writer stopped and everything is answered
+      ready.swap(acks_);
+    }
+    for (auto& a : ready) a.done(std::move(a.result));
+    ready.clear();
   }
 }
 

@@ -5,6 +5,10 @@
 // With synchronous=FULL every commit costs an fsync; sharing it among the
 // requests that arrived meanwhile keeps single-reading POSTs fast without
 // weakening durability: no request is answered before its COMMIT returns.
+//
+// Acknowledging (rendering each answer) runs on a second thread, so the
+// writer starts the next transaction while the last one's answers are
+// written: the writer thread does nothing but store.
 #pragma once
 
 #include <condition_variable>
@@ -30,11 +34,12 @@ struct WriterOptions {
 class ReadingWriter {
  public:
   using Batch = std::vector<models::wire::ReadingInput>;
-  // Called once, on the writer thread, after the transaction ended.
+  // Called once, on the acknowledging thread, after the transaction ended;
+  // callbacks run one at a time, in commit order.
   using Done = std::function<void(storage::StoreResult<storage::AppendOutcome>)>;
 
   ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options = {});
-  // Stores what is pending, then stops the thread.
+  // Stores what is pending, acknowledges it, then stops both threads.
   ~ReadingWriter();
   ReadingWriter(const ReadingWriter&) = delete;
   ReadingWriter& operator=(const ReadingWriter&) = delete;
@@ -50,8 +55,13 @@ class ReadingWriter {
     Batch batch;
     Done done;
   };
+  struct Acknowledgement {
+    Done done;
+    storage::StoreResult<storage::AppendOutcome> result;
+  };
   void run();
   void commit(std::vector<Pending>& group);
+  void acknowledge();
 
   storage::Store& store_;
   const Clock& clock_;
@@ -61,7 +71,16 @@ class ReadingWriter {
   std::deque<Pending> pending_;
   bool stopping_ = false;
   std::size_t commits_ = 0;
-  std::thread thread_;  // last: starts after the members above exist
+
+  std::mutex ack_mutex_;
+  std::condition_variable ack_wake_;
+  std::deque<Acknowledgement> acks_;
+  bool writer_done_ = false;  // the writer has handed over its last group
+
+  // Last: they start after the members above exist. The acknowledger is
+  // declared first so that it is still running while the writer drains.
+  std::thread acknowledger_;
+  std::thread thread_;
 };
 
 }  // namespace pbfleet::api
