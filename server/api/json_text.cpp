@@ -46,15 +46,22 @@ Utf8Run utf8_run(std::string_view s) {
 
 void append_json_string(std::string& out, std::string_view text) {
   static constexpr char kHex[] = "0123456789abcdef";
+  const auto plain = [](unsigned char c) { return c >= 0x20 && c < 0x80 && c != '"' && c != '\\'; };
   out += '"';
   std::size_t i = 0;
   while (i < text.size()) {
+    // Most text is plain ASCII: copy each run of it in one append.
+    std::size_t end = i;
+    while (end < text.size() && plain(static_cast<unsigned char>(text[end]))) ++end;
+    out.append(text.data() + i, end - i);
+    if (end == text.size()) break;
+    i = end;
     const auto c = static_cast<unsigned char>(text[i]);
     if (c >= 0x80) {
-      const Utf8Run run = utf8_run(text.substr(i));
-      if (run.complete) out.append(text.substr(i, run.length));
+      const Utf8Run seq = utf8_run(text.substr(i));
+      if (seq.complete) out.append(text.substr(i, seq.length));
       else out += kReplacement;
-      i += run.length;
+      i += seq.length;
       continue;
     }
     switch (c) {
@@ -66,13 +73,9 @@ void append_json_string(std::string& out, std::string_view text) {
       case '\r': out += "\\r"; break;
       case '\t': out += "\\t"; break;
       default:
-        if (c < 0x20) {
-          out += "\\u00";
-          out += kHex[c >> 4];
-          out += kHex[c & 0xF];
-        } else {
-          out += static_cast<char>(c);
-        }
+        out += "\\u00";  // the other control characters; plain text never gets here
+        out += kHex[c >> 4];
+        out += kHex[c & 0xF];
     }
     ++i;
   }
