@@ -138,7 +138,10 @@ RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
 AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<ReadingInput>& batch,
                            sys_seconds now) {
   AppendOutcome out;
+  out.readings.reserve(batch.size());
+  out.replayed.reserve(batch.size());
   std::unordered_map<std::string, SeenInBatch> seen;
+  seen.reserve(batch.size());
   for (std::size_t row = 0; row < batch.size(); ++row) {
     ReadingInput input = batch[row];
     const auto battery_id = st.battery_id(input.serial);
