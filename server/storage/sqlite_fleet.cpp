@@ -206,7 +206,10 @@ StoreResult<Battery> SqliteStore::create_battery(const Battery& b, sys_seconds a
     bind_battery_fields(s, b);
     run_unique(s, "serial", "a battery with serial '" + b.serial + "' already exists");
     const Id id = db.last_insert_id();
-    if (b.vehicle_id) add_event(db, id, at, EventKind::fitted, b.vehicle_id, "");
+    // Registered already in a vehicle: it was fitted on its install date
+    // (never later than now), not when somebody typed it in.
+    const sys_seconds fitted_at = std::min(sys_seconds{b.installed_on}, at);
+    if (b.vehicle_id) add_event(db, id, fitted_at, EventKind::fitted, b.vehicle_id, "");
     return battery_by_serial(db, b.serial);
   });
 }

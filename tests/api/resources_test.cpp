@@ -130,6 +130,7 @@ TEST_CASE("history shows readings with derived values and events, within from an
   CHECK(all["readings"][2]["derived"]["soc_percent"].is_number());
   CHECK(all["events"].size() >= 1);
   CHECK(all["events"][0]["kind"] == "fitted");
+  CHECK(all["events"][0]["at"] == "2025-10-02T00:00:00Z");  // the install date, not registration
   auto window = body_of(f.get("/v1/batteries/NY-0001/history?from=2026-01-01T00:00:00Z&to=2026-01-05T00:00:00Z"));
   REQUIRE(window["readings"].size() == 1);
   CHECK(window["readings"][0]["reading_id"] == "h2");

@@ -155,6 +155,9 @@ TEST_CASE("fitting and retiring record events and retiring unfits the battery") 
   REQUIRE(events.size() == 3);
   CHECK(events[0].kind == EventKind::fitted);
   CHECK(events[0].vehicle_id == f.vehicle.id);
+  // Registered with its vehicle on day 0: fitted on its install date, 2023-10-02.
+  CHECK(events[0].at == std::chrono::sys_days{std::chrono::year{2023} / 10 / 2});
+  CHECK(events[1].at == at(3));
   CHECK(events[1].vehicle_id == other);
   CHECK(events[2].kind == EventKind::retired);
   CHECK(events[2].vehicle_id == other);
