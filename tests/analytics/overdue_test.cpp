@@ -7,7 +7,7 @@
 namespace pa = pbfleet::analytics;
 using namespace pa::testing;
 
-TEST_CASE("a battery unread for more than 10 days is overdue; one read this week is not") {
+TEST_CASE("a battery unread for more than 10 days is overdue, one read this week is not") {
   // Weekly rounds plus a few days' grace (common practice).
   CHECK(pa::is_overdue(days_before_now(15), test_now(), 10));
   CHECK(pa::is_overdue(days_before_now(10.5), test_now(), 10));

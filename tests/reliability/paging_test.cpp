@@ -89,7 +89,7 @@ TEST_CASE("cursor paging sees every pre-existing reading exactly once while anot
   for (const auto& [id, count] : seen) CHECK_MESSAGE(count == 1, id);
 }
 
-TEST_CASE("a page limit above 1000 is refused with 400 naming limit; 1000 is served") {
+TEST_CASE("a page limit above 1000 is refused with 400 naming limit, 1000 is served") {
   LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
   auto admin = fleet.client("admin");
   for (const std::string target : {"/v1/readings", "/v1/batteries", "/v1/tokens", "/v1/depots"}) {

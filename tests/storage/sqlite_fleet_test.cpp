@@ -33,7 +33,7 @@ TEST_CASE("a second depot with the same name is a conflict naming the field") {
   CHECK(f.store->list_depots({}).value().items.size() == 1);
 }
 
-TEST_CASE("updating a depot changes it; an unknown id is not found") {
+TEST_CASE("updating a depot changes it, an unknown id is not found") {
   Fleet f;
   Depot d = f.depot;
   d.design_low_c = models::Celsius{-32};
@@ -115,7 +115,7 @@ TEST_CASE("a battery is stored with its ratings and the depot of its vehicle") {
   CHECK(b.status == BatteryStatus::in_service);
 }
 
-TEST_CASE("a duplicate serial is a conflict; an unknown vehicle a constraint") {
+TEST_CASE("a duplicate serial is a conflict, an unknown vehicle a constraint") {
   Fleet f;
   CHECK(f.store->create_battery(Fleet::make_battery("NY-0001"), at(0)).error().code ==
         StoreErrc::conflict);

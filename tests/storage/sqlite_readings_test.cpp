@@ -130,7 +130,7 @@ TEST_CASE("a batch mixing new readings and replays stores only the new ones") {
   CHECK(f.store->readings_count().value() == 4);
 }
 
-TEST_CASE("the same reading id with other content is a conflict naming the id; nothing is stored") {
+TEST_CASE("the same reading id with other content is a conflict naming the id, nothing is stored") {
   Fleet f;
   REQUIRE(f.store->append_readings({reading("dup", "NY-0001", 1)}, at(2))->accepted());
   auto changed = reading("dup", "NY-0001", 1);

@@ -163,7 +163,7 @@ TEST_CASE("a document full of bad rows stops after the error limit") {
   CHECK(p.errors.back().error.detail.find("too many errors") != std::string::npos);
 }
 
-TEST_CASE("booleans read true/false, 1/0 and yes/no in any case; empty is false") {
+TEST_CASE("booleans read true/false, 1/0 and yes/no in any case, empty is false") {
   struct Case {
     std::string_view cell;
     bool value;

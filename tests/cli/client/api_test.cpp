@@ -14,7 +14,7 @@ TEST_CASE("query values are percent-encoded and empty ones left out") {
   CHECK(with_query("/v1/depots", {}) == "/v1/depots");
 }
 
-TEST_CASE("every request carries the bearer token; JSON bodies are sent as JSON") {
+TEST_CASE("every request carries the bearer token, JSON bodies are sent as JSON") {
   testing::FakeServer server([](const HttpRequest&) { return testing::json_response(201, R"({"id":1})"); });
   Api api(server.transport(), "tok");
   auto reply = api.post("/v1/depots", Json{{"name", "Harbour"}});
@@ -27,7 +27,7 @@ TEST_CASE("every request carries the bearer token; JSON bodies are sent as JSON"
   CHECK(Json::parse(server.requests[0].body)["name"] == "Harbour");
 }
 
-TEST_CASE("a refusal is parsed into a problem; garbage JSON on success is an error") {
+TEST_CASE("a refusal is parsed into a problem, garbage JSON on success is an error") {
   testing::FakeServer refuse([](const HttpRequest&) {
     return testing::json_response(404, R"({"type":"https://pbfleet.invalid/problems/not-found","title":"Not found","status":404})");
   });

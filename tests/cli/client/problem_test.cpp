@@ -33,7 +33,7 @@ TEST_CASE("a body that is not problem JSON still gives the status and its first 
   CHECK(render_problem(p) == "error: server answered 502: <html>Bad gateway</html>\n");
 }
 
-TEST_CASE("conflicts are data rejections; auth and server failures are not") {
+TEST_CASE("conflicts are data rejections, auth and server failures are not") {
   CHECK(is_data_rejection(parse_problem(409, "{}")));
   CHECK_FALSE(is_data_rejection(parse_problem(401, "{}")));
   CHECK_FALSE(is_data_rejection(parse_problem(503, "{}")));

@@ -60,7 +60,7 @@ TEST_CASE("connect keeps the stored token when only the server changes") {
   CHECK(text.find("tok-1") != std::string::npos);
 }
 
-TEST_CASE("connect --show names the sources; the environment beats the file, flags beat both") {
+TEST_CASE("connect --show names the sources, the environment beats the file, flags beat both") {
   ConfigHome home;
   std::filesystem::create_directories(home.file().parent_path());
   std::ofstream(home.file()) << "server = http://file:1\ntoken = file-secret\n";
@@ -94,7 +94,7 @@ TEST_CASE("the resolved token is what goes out as the bearer") {
   CHECK(server.requests.at(1).bearer_token == "flag-secret");
 }
 
-TEST_CASE("connect with nothing to store is a usage error; a bad URL is refused before saving") {
+TEST_CASE("connect with nothing to store is a usage error, a bad URL is refused before saving") {
   ConfigHome home;
   testing::Terminal term;
   home.use(term);

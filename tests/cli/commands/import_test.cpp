@@ -78,7 +78,7 @@ TEST_CASE("import --json reports local errors as JSON on stdout too") {
   CHECK(j["errors"][0]["field"] == "taken_at");
 }
 
-TEST_CASE("a large file goes in chunks; no progress bar when stderr is not a terminal") {
+TEST_CASE("a large file goes in chunks, no progress bar when stderr is not a terminal") {
   CsvFile file(round_csv(1200));
   testing::FakeServer server(accept_all);
   testing::Terminal term;

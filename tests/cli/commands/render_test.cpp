@@ -55,7 +55,7 @@ TEST_CASE("a row holding one list of objects is spread into one row per element"
   CHECK(rows[2]["depot_name"] == "Valley");
 }
 
-TEST_CASE("tables show the preferred columns that exist, in that order; cautions are never columns") {
+TEST_CASE("tables show the preferred columns that exist, in that order, cautions are never columns") {
   std::vector<Json> rows = {Json::parse(R"({"serial":"NB-1","zzz":1,"level":"act_now","cautions":["Ventilate."]})")};
   auto t = rows_table(rows, {"level", "serial", "missing"}, true).render(format::Style{});
   CHECK(t.rfind("level    serial\n", 0) == 0);

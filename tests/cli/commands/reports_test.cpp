@@ -89,7 +89,7 @@ TEST_CASE("overdue, sulfation and replacements call their routes with their filt
   }
 }
 
-TEST_CASE("a server refusal exits 1 with the problem on stderr; auth failures get a hint") {
+TEST_CASE("a server refusal exits 1 with the problem on stderr, auth failures get a hint") {
   testing::FakeServer server([](const HttpRequest&) {
     return testing::json_response(401, R"({"type":"https://pbfleet.invalid/problems/unauthorized","title":"Unauthorized","status":401})");
   });

@@ -60,7 +60,7 @@ TEST_CASE("config path follows XDG_CONFIG_HOME, else HOME/.config") {
   CHECK_FALSE(config_path(io).ok());
 }
 
-TEST_CASE("config file: comments and spaces are ignored; an unknown key names its line") {
+TEST_CASE("config file: comments and spaces are ignored, an unknown key names its line") {
   auto ok = parse_config("# fleet\n server = http://depot-pc:8470 \n\ntoken=abc   # for the Harbour crew\n");
   REQUIRE(ok.ok());
   CHECK(ok->server_url == "http://depot-pc:8470");
@@ -94,7 +94,7 @@ TEST_CASE("a missing config file is an empty layer, not an error") {
   CHECK_FALSE(l->server_url.has_value());
 }
 
-TEST_CASE("token file: first line, trimmed; an empty file is refused") {
+TEST_CASE("token file: first line, trimmed, an empty file is refused") {
   TempDir dir;
   std::ofstream(dir.path / "t") << "  tok-123  \nsecond line\n";
   CHECK(read_token_file(dir.path / "t").value() == "tok-123");

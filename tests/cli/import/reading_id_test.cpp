@@ -32,7 +32,7 @@ TEST_CASE("the same reading always gets the same id, and the id fits the server'
   CHECK(a.find_first_not_of("rd-0123456789abcdef") == std::string::npos);
 }
 
-TEST_CASE("any change in content changes the id; a given reading_id is ignored") {
+TEST_CASE("any change in content changes the id, a given reading_id is ignored") {
   auto base = derive_reading_id(reading());
   auto r = reading();
   r.cell_sg[3] = {1.195};
