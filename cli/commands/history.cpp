@@ -139,6 +139,8 @@ std::string battery_line(const Json& battery) {
   if (battery.contains("rated_cca_a") && battery["rated_cca_a"].is_number()) {
     s += fmt::format(", {:g} A CCA", battery["rated_cca_a"].get<double>());
   }
+  if (battery.contains("installed_on") && battery["installed_on"].is_string())
+    s += ", installed " + battery["installed_on"].get<std::string>();
   if (battery.contains("status") && battery["status"].is_string()) s += ", " + battery["status"].get<std::string>();
   return s + "\n\n";
 }

@@ -11,7 +11,7 @@ using client::Json;
 
 namespace {
 
-const char* kHistory = R"({"battery":{"serial":"NB-2023-0001","chemistry":"flooded","rated_cca_a":800,"status":"in_service"},
+const char* kHistory = R"({"battery":{"serial":"NB-2023-0001","chemistry":"flooded","rated_cca_a":800,"installed_on":"2023-10-02","status":"in_service"},
  "readings":[
   {"taken_at":"2026-10-05T07:15:00Z","ocv_v":12.62,"rest_h":14,"cell_sg":[1.262,1.266],"electrolyte_temp_f":50,
    "derived":{"corrected_sg":1.254,"soc_percent":88.0,"soc_uncertainty_percent":4,"cell_spread":0.004,"weak_cell":null,"flags":[]}},
@@ -49,13 +49,24 @@ TEST_CASE("chart series: SOC on 0-100, SG axis around the data, flags marked, mi
   CHECK(sg.decimals == 3);
 }
 
-TEST_CASE("history prints the table, both charts and the events; --ascii keeps it plain") {
+TEST_CASE("a bare --to date runs to the last second of that day, a full time goes as given") {
+  testing::FakeServer server([](const client::HttpRequest&) { return testing::json_response(200, kHistory); });
+  testing::Terminal term;
+  REQUIRE(term.run({"history", "NB-1", "--ascii", "--from", "2026-10-01T06:30:00Z", "--to", "2026-11-30"},
+                   {server.transport(), nullptr}) == 0);
+  CHECK(server.requests.at(0).target ==
+        "/v1/batteries/NB-1/history?from=2026-10-01T06%3A30%3A00Z&to=2026-11-30T23%3A59%3A59Z");
+}
+
+TEST_CASE("history prints the table, both charts and the events, --ascii keeps it plain") {
   testing::FakeServer server([](const client::HttpRequest&) { return testing::json_response(200, kHistory); });
   testing::Terminal term;
   REQUIRE(term.run({"history", "NB 2023/1", "--ascii", "--from", "2026-10-01"}, {server.transport(), nullptr}) == 0);
-  CHECK(server.requests.at(0).target == "/v1/batteries/NB%202023%2F1/history?from=2026-10-01");
+  // A bare date is the whole day in UTC: from its first second.
+  CHECK(server.requests.at(0).target ==
+        "/v1/batteries/NB%202023%2F1/history?from=2026-10-01T00%3A00%3A00Z");
   auto out = term.out.str();
-  CHECK(out.find("NB-2023-0001  flooded, 800 A CCA, in_service") == 0);
+  CHECK(out.find("NB-2023-0001  flooded, 800 A CCA, installed 2023-10-02, in_service") == 0);
   CHECK(out.find("2026-11-02 07:10") != std::string::npos);
   CHECK(out.find("State of charge (%)") != std::string::npos);
   CHECK(out.find("Corrected SG") != std::string::npos);
