@@ -75,10 +75,12 @@ TEST_CASE("the default answer echoes every field with its derived values, in the
   CHECK(listed["next_cursor"].is_null());
 }
 
-TEST_CASE("Prefer: return=minimal answers with counts and ids only, and says so") {
+TEST_CASE("Prefer: return=minimal answers with counts, ids and flags only, and says so") {
   ApiFixture f;
-  const json batch =
-      json::array({good_reading("NY-0001", "m-1"), good_reading("NY-0001", "m-2", 30)});
+  json low = good_reading("NY-0001", "m-2", 30);
+  low["cell_sg"] = {1.180, 1.180, 1.185, 1.180, 1.180, 1.180};  // about half charged
+  low["ocv_v"] = 12.25;
+  const json batch = json::array({good_reading("NY-0001", "m-1"), low});
   auto send = [&](const std::string& prefer) {
     http::Request request;
     request.method = "POST";
@@ -91,11 +93,16 @@ TEST_CASE("Prefer: return=minimal answers with counts and ids only, and says so"
   };
   auto first = send("respond-async, RETURN=minimal; x=1");
   REQUIRE(first.status == 201);
-  CHECK(body_of(first) == json({{"stored", 2},
-                                {"replayed", 0},
-                                {"readings",
-                                 {{{"reading_id", "m-1"}, {"replayed", false}},
-                                  {{"reading_id", "m-2"}, {"replayed", false}}}}}));
+  const json minimal = body_of(first);
+  CHECK(minimal["stored"] == 2);
+  CHECK(minimal["replayed"] == 0);
+  REQUIRE(minimal["readings"].size() == 2);
+  CHECK(minimal["readings"][0] ==
+        json({{"reading_id", "m-1"}, {"replayed", false}, {"flags", json::array()}}));
+  CHECK(minimal["readings"][1]["reading_id"] == "m-2");
+  const auto& low_flags = minimal["readings"][1]["flags"];
+  CHECK(std::find(low_flags.begin(), low_flags.end(), "low_soc") != low_flags.end());
+  CHECK(minimal["readings"][1].size() == 3);  // reading_id, replayed, flags: nothing else
   const auto applied = std::find(first.headers.begin(), first.headers.end(),
                                  std::pair<std::string, std::string>{"Preference-Applied", "return=minimal"});
   CHECK(applied != first.headers.end());
@@ -106,9 +113,12 @@ TEST_CASE("Prefer: return=minimal answers with counts and ids only, and says so"
   CHECK(body_of(again)["replayed"] == 2);
   CHECK(body_of(again)["readings"][1]["replayed"] == true);
 
-  // Any other preference gets the full answer.
+  // Any other preference gets the full answer, whose derived flags are the
+  // minimal answer's.
   auto full = send("return=representation");
   CHECK(body_of(full)["readings"][0].contains("derived"));
+  for (int i = 0; i < 2; ++i)
+    CHECK(body_of(full)["readings"][i]["derived"]["flags"] == minimal["readings"][i]["flags"]);
   CHECK(std::none_of(full.headers.begin(), full.headers.end(),
                      [](const auto& h) { return h.first == "Preference-Applied"; }));
 }

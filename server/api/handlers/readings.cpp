@@ -132,11 +132,20 @@ std::string stored_body(const storage::AppendOutcome& outcome,
   });
 }
 
-// The body asked for with "Prefer: return=minimal" (RFC 7240): the counts
-// and each reading's id, for bulk clients that keep what they sent.
-std::string minimal_body(const storage::AppendOutcome& outcome) {
-  return outcome_body(outcome, 48, [&](JsonText& out, std::size_t i, bool replayed) {
-    out.member("reading_id", outcome.readings[i].reading_id).member("replayed", replayed);
+// The body asked for with "Prefer: return=minimal" (RFC 7240), for bulk
+// clients that keep what they sent: the counts, each reading's id and its
+// flags (what needs the crew's attention; empty when nothing does).
+std::string minimal_body(const storage::AppendOutcome& outcome,
+                         const std::map<std::string, storage::Battery>& batteries) {
+  const analytics::AnalyticsSettings settings;
+  return outcome_body(outcome, 64, [&](JsonText& out, std::size_t i, bool replayed) {
+    const auto& r = outcome.readings[i];
+    out.member("reading_id", r.reading_id).member("replayed", replayed).key("flags").begin_array();
+    if (auto b = batteries.find(r.serial); b != batteries.end()) {
+      const auto flags = analytics::derive(point_of(r), spec_of(b->second), settings).flags;
+      for (auto word : flags.words()) out.value(word);
+    }
+    out.end_array();
   });
 }
 
@@ -167,7 +176,7 @@ void post_readings(const Call& call, http::Reply reply) {
     metrics.add_readings_stored(outcome.stored);
     const int status = outcome.stored > 0 ? 201 : 200;
     if (!minimal) return reply(json_text_response(status, stored_body(outcome, batteries)));
-    auto response = json_text_response(status, minimal_body(outcome));
+    auto response = json_text_response(status, minimal_body(outcome, batteries));
     response.headers.emplace_back("Preference-Applied", "return=minimal");
     reply(std::move(response));
   };
