@@ -7,11 +7,13 @@
 #include <sstream>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "cli/commands/remote.hpp"
 #include "cli/commands/table.hpp"
 #include "cli/format/progress.hpp"
 #include "cli/import/batch.hpp"
+#include "models/wire/reading.hpp"
 
 namespace pbfleet::cli {
 namespace {
@@ -77,6 +79,20 @@ int report_server_refusal(const import::SendOutcome& sent, const std::vector<int
   return client::is_data_rejection(*sent.failure.problem) ? kExitRejected : kExitFailure;
 }
 
+// The readings that need attention, one line each, so the crew can act
+// before leaving the yard.
+void print_flagged(const std::vector<import::Flagged>& flagged, const import::Prepared& prepared, Context& ctx) {
+  if (flagged.empty()) return;
+  ctx.out() << fmt::format("{} flagged:\n", flagged.size() == 1 ? std::string("1 reading") :
+                                                                   fmt::format("{} readings", flagged.size()));
+  for (const auto& x : flagged) {
+    const auto& r = prepared.readings[x.index];
+    ctx.out() << fmt::format("  row {}  {}  {}  {}\n", prepared.rows[x.index], r.serial,
+                             models::wire::format_timestamp(r.taken_at), fmt::join(x.flags, ", "));
+  }
+  ctx.out() << "details: pbfleet history SERIAL\n";
+}
+
 int send(const import::Prepared& prepared, const ImportFlags& f, Context& ctx) {
   int code = kExitOk;
   auto api = api_or_fail(ctx, code);
@@ -86,10 +102,19 @@ int send(const import::Prepared& prepared, const ImportFlags& f, Context& ctx) {
   bar.finish();
   if (sent.failed_chunk) return report_server_refusal(sent, prepared.rows, ctx);
   if (f.json) {
-    ctx.out() << Json{{"ok", true}, {"rows", sent.rows_done}, {"stored", sent.stored}, {"replayed", sent.replayed}}.dump(2)
+    Json flagged = Json::array();
+    for (const auto& x : sent.flagged) {
+      const auto& r = prepared.readings[x.index];
+      flagged.push_back({{"row", prepared.rows[x.index]}, {"serial", r.serial},
+                         {"taken_at", models::wire::format_timestamp(r.taken_at)}, {"flags", x.flags}});
+    }
+    ctx.out() << Json{{"ok", true}, {"rows", sent.rows_done}, {"stored", sent.stored}, {"replayed", sent.replayed},
+                      {"flagged", flagged}}
+                     .dump(2)
               << '\n';
   } else {
     ctx.out() << fmt::format("imported {} rows: {} new, {} already stored\n", sent.rows_done, sent.stored, sent.replayed);
+    print_flagged(sent.flagged, prepared, ctx);
   }
   return kExitOk;
 }

@@ -23,6 +23,21 @@ std::size_t count_of(const client::Json& body, const char* key) {
   return it != body.end() && it->is_number_unsigned() ? it->get<std::size_t>() : 0;
 }
 
+// The flagged readings of one chunk's answer: readings[k].flags, non-empty.
+void collect_flagged(const client::Json& body, const Chunk& chunk, std::vector<Flagged>& out) {
+  auto readings = body.find("readings");
+  if (readings == body.end() || !readings->is_array()) return;
+  for (std::size_t k = 0; k < readings->size() && k < chunk.count; ++k) {
+    const auto& r = (*readings)[k];
+    auto flags = r.find("flags");
+    if (!r.is_object() || flags == r.end() || !flags->is_array() || flags->empty()) continue;
+    Flagged f{chunk.first + k, {}};
+    for (const auto& word : *flags)
+      if (word.is_string()) f.flags.push_back(word.get<std::string>());
+    if (!f.flags.empty()) out.push_back(std::move(f));
+  }
+}
+
 // "/12/cell_sg/3" -> 12
 std::optional<int> pointer_index(std::string_view field) {
   if (field.size() < 2 || field[0] != '/') return std::nullopt;
@@ -63,7 +78,7 @@ SendOutcome send_readings(const client::Api& api, const std::vector<ReadingInput
     for (std::size_t i = chunk.first; i < chunk.first + chunk.count; ++i) {
       body.push_back(client::reading_to_json(readings[i]));
     }
-    // Only the counts are read back: the short answer saves the server
+    // Counts and flags are read back: the short answer saves the server
     // rendering every reading again (see POST /v1/readings, Prefer).
     auto reply = api.post("/v1/readings", body, "return=minimal");
     if (!reply.ok) {
@@ -73,6 +88,7 @@ SendOutcome send_readings(const client::Api& api, const std::vector<ReadingInput
     }
     outcome.stored += count_of(reply.json, "stored");
     outcome.replayed += count_of(reply.json, "replayed");
+    collect_flagged(reply.json, chunk, outcome.flagged);
     outcome.rows_done += chunk.count;
     if (progress) progress(outcome.rows_done);
   }

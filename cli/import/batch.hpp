@@ -6,6 +6,7 @@
 #include <chrono>
 #include <functional>
 #include <optional>
+#include <string>
 #include <string_view>
 #include <vector>
 
@@ -43,7 +44,14 @@ struct Prepared {
 // only for a broken document (quotes, header).
 models::Result<Prepared> prepare_import(std::string_view csv_text, std::chrono::sys_seconds now);
 
+// A stored reading the server flagged (low charge, unsettled OCV, ...).
+struct Flagged {
+  std::size_t index = 0;               // into the readings sent
+  std::vector<std::string> flags;      // the server's flag words
+};
+
 struct SendOutcome {
+  std::vector<Flagged> flagged;        // in the order sent
   std::size_t stored = 0;              // new readings the server kept
   std::size_t replayed = 0;            // already stored (same id and content)
   std::size_t rows_done = 0;           // rows in chunks the server accepted

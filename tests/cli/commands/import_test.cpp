@@ -88,6 +88,41 @@ TEST_CASE("a large file goes in chunks, no progress bar when stderr is not a ter
   CHECK(term.err.str().empty());
 }
 
+// Flags the second reading of every chunk: "low_soc" and "cell_spread".
+client::HttpResponse flag_second(const HttpRequest& r) {
+  const auto n = Json::parse(r.body).size();
+  Json readings = Json::array();
+  for (std::size_t i = 0; i < n; ++i) {
+    readings.push_back({{"reading_id", "r" + std::to_string(i)},
+                        {"replayed", false},
+                        {"flags", i == 1 ? Json{"low_soc", "cell_spread"} : Json::array()}});
+  }
+  return testing::json_response(201, Json{{"stored", n}, {"replayed", 0}, {"readings", readings}}.dump());
+}
+
+TEST_CASE("readings the server flags are listed after the counts, by file row, across chunks") {
+  CsvFile file(round_csv(5));
+  testing::FakeServer server(flag_second);
+  testing::Terminal term;
+  REQUIRE(term.run({"import", file.path, "--chunk", "3"}, seams(server)) == 0);
+  REQUIRE(server.requests.size() == 2);
+  CHECK(server.requests[0].prefer == "return=minimal");
+  // Chunk rows 1-3 flag its second (row 2); chunk rows 4-5 flags row 5.
+  CHECK(term.out.str() ==
+        "imported 5 rows: 5 new, 0 already stored\n"
+        "2 readings flagged:\n"
+        "  row 2  NB-1  2026-11-30T07:15:00Z  low_soc, cell_spread\n"
+        "  row 5  NB-4  2026-11-30T07:15:00Z  low_soc, cell_spread\n"
+        "details: pbfleet history SERIAL\n");
+
+  testing::Terminal json_term;
+  REQUIRE(json_term.run({"import", file.path, "--chunk", "3", "--json"}, seams(server)) == 0);
+  const auto j = Json::parse(json_term.out.str());
+  REQUIRE(j["flagged"].size() == 2);
+  CHECK(j["flagged"][1] == Json{{"row", 5}, {"serial", "NB-4"}, {"taken_at", "2026-11-30T07:15:00Z"},
+                                {"flags", {"low_soc", "cell_spread"}}});
+}
+
 TEST_CASE("on a terminal the progress bar goes to stderr, never stdout") {
   CsvFile file(round_csv(20));
   testing::FakeServer server(accept_all);
