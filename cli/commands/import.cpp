@@ -88,7 +88,7 @@ void print_flagged(const std::vector<import::Flagged>& flagged, const import::Pr
   for (const auto& x : flagged) {
     const auto& r = prepared.readings[x.index];
     ctx.out() << fmt::format("  row {}  {}  {}  {}\n", prepared.rows[x.index], r.serial,
-                             models::wire::format_timestamp(r.taken_at), fmt::join(x.flags, ", "));
+                             models::wire::format_timestamp(r.taken_at), fmt::join(x.flags, "; "));
   }
   ctx.out() << "details: pbfleet history SERIAL\n";
 }

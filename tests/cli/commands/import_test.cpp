@@ -111,8 +111,8 @@ TEST_CASE("readings the server flags are listed after the counts, by file row, a
   CHECK(term.out.str() ==
         "imported 5 rows: 5 new, 0 already stored\n"
         "2 readings flagged:\n"
-        "  row 2  NB-1  2026-11-30T07:15:00Z  low_soc, cell_spread\n"
-        "  row 5  NB-4  2026-11-30T07:15:00Z  low_soc, cell_spread\n"
+        "  row 2  NB-1  2026-11-30T07:15:00Z  low_soc; cell_spread\n"
+        "  row 5  NB-4  2026-11-30T07:15:00Z  low_soc; cell_spread\n"
         "details: pbfleet history SERIAL\n");
 
   testing::Terminal json_term;
