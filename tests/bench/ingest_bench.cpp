@@ -5,8 +5,8 @@
 //   batched vs a raw SQLite insert of the same rows (one prepared INSERT,
 //           one transaction per 500 rows, the server's schema and pragmas);
 //           once with the default answer (every reading echoed with its
-//           derived values) and once with "Prefer: return=minimal" (counts
-//           and reading ids, as the CLI's import asks for).
+//           derived values) and once with "Prefer: return=minimal" (counts,
+//           reading ids and flags, as the CLI's import asks for).
 //
 //   bench_ingest --pbfleetd PATH --work DIR [--single N] [--batches M] [--seconds S]
 //                [--connections C]
