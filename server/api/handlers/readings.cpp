@@ -117,17 +117,27 @@ std::string outcome_body(const storage::AppendOutcome& outcome, std::size_t byte
   return body;
 }
 
+using BatteriesBySerial = std::map<std::string, storage::Battery>;
+
+// A stored reading's derived values (default settings); nullopt when its
+// battery is not among those the batch was checked against.
+std::optional<analytics::DerivedReading> derived_of(const storage::StoredReading& r,
+                                                    const BatteriesBySerial& batteries) {
+  static const analytics::AnalyticsSettings settings;
+  const auto b = batteries.find(r.serial);
+  if (b == batteries.end()) return std::nullopt;
+  return analytics::derive(point_of(r), spec_of(b->second), settings);
+}
+
 // The 201/200 body: every reading as stored, with its derived values.
-std::string stored_body(const storage::AppendOutcome& outcome,
-                        const std::map<std::string, storage::Battery>& batteries) {
-  const analytics::AnalyticsSettings settings;
+std::string stored_body(const storage::AppendOutcome& outcome, const BatteriesBySerial& batteries) {
   return outcome_body(outcome, 900, [&](JsonText& out, std::size_t i, bool replayed) {
     const auto& r = outcome.readings[i];
     write_reading_members(out, r);
     out.member("replayed", replayed);
-    if (auto b = batteries.find(r.serial); b != batteries.end()) {
+    if (const auto derived = derived_of(r, batteries)) {
       out.key("derived");
-      write_derived(out, analytics::derive(point_of(r), spec_of(b->second), settings));
+      write_derived(out, *derived);
     }
   });
 }
@@ -135,16 +145,12 @@ std::string stored_body(const storage::AppendOutcome& outcome,
 // The body asked for with "Prefer: return=minimal" (RFC 7240), for bulk
 // clients that keep what they sent: the counts, each reading's id and its
 // flags (what needs the crew's attention; empty when nothing does).
-std::string minimal_body(const storage::AppendOutcome& outcome,
-                         const std::map<std::string, storage::Battery>& batteries) {
-  const analytics::AnalyticsSettings settings;
+std::string minimal_body(const storage::AppendOutcome& outcome, const BatteriesBySerial& batteries) {
   return outcome_body(outcome, 64, [&](JsonText& out, std::size_t i, bool replayed) {
     const auto& r = outcome.readings[i];
     out.member("reading_id", r.reading_id).member("replayed", replayed).key("flags").begin_array();
-    if (auto b = batteries.find(r.serial); b != batteries.end()) {
-      const auto flags = analytics::derive(point_of(r), spec_of(b->second), settings).flags;
-      for (auto word : flags.words()) out.value(word);
-    }
+    if (const auto derived = derived_of(r, batteries))
+      for (auto word : derived->flags.words()) out.value(word);
     out.end_array();
   });
 }
