@@ -19,6 +19,7 @@
 #include "server/api/config.hpp"
 #include "server/http/server.hpp"
 #include "server/storage/sqlite_store.hpp"
+#include "server/web/dashboard.hpp"
 
 namespace api = pbfleet::api;
 namespace storage = pbfleet::storage;
@@ -73,12 +74,17 @@ int serve(storage::Store& store, const api::Config& config, const std::string& p
   api::ApiOptions options;
   options.backup_dir = config.backup_dir;
   api::Api app(store, clock, options);
+  pbfleet::web::Dashboard dashboard(
+      app.context(), {.session_lifetime = std::chrono::hours{config.session_hours},
+                      .secure_cookies = config.secure_cookies});
+  app.set_pages(&dashboard);
   pbfleet::http::Server server(
       config.server, [&app](auto request, auto reply) { app.dispatch(std::move(request), std::move(reply)); },
       &api::Api::refusal);
   std::string error;
   if (!server.listen(config.host, config.port, &error)) return fail(kExitFailure, "cannot listen: " + error);
-  spdlog::info("listening on {}:{} (database {})", config.host, server.port(), config.db.string());
+  spdlog::info("listening on {}:{} (database {}); dashboard at http://{}:{}/", config.host, server.port(),
+               config.db.string(), config.host, server.port());
   if (!port_file.empty()) std::ofstream(port_file) << server.port() << '\n';
   server.run();
   spdlog::info("stopped: in-flight requests finished, closing the database");

@@ -18,6 +18,7 @@ struct Api::Impl {
   Authenticator auth;
   ReadingWriter writer;
   Context context;
+  Pages* pages = nullptr;
 
   Impl(storage::Store& store, const Clock& clock, ApiOptions o)
       : options(std::move(o)),
@@ -43,6 +44,10 @@ Api::Api(storage::Store& store, const Clock& clock, ApiOptions options)
 Api::~Api() = default;
 
 Metrics& Api::metrics() { return impl_->metrics; }
+
+Context& Api::context() { return impl_->context; }
+
+void Api::set_pages(Pages* pages) { impl_->pages = pages; }
 
 http::Response Api::refusal(int status, std::string_view detail) {
   return problem(kind_for_status(status), detail);
@@ -85,6 +90,19 @@ std::optional<http::Response> refuse_unmatched(const Match& m, const Target& tar
 
 void Api::dispatch(http::Request request, http::Reply reply) {
   const Target target = parse_target(request.target);
+  if (impl_->pages && !target.malformed) {
+    const std::string_view page_route = impl_->pages->route_of(target.path);
+    if (!page_route.empty()) {
+      auto done = observed(std::move(reply), impl_->metrics, request.method, std::string(page_route), "-");
+      try {
+        done(impl_->pages->serve(request, target));
+      } catch (const std::exception& e) {
+        spdlog::error("page {} {} failed: {}", request.method, page_route, e.what());
+        done(problem(ProblemKind::internal, "internal error; see the server log"));
+      }
+      return;
+    }
+  }
   Match m = match_route(routes(), request.method, target.path);
   const std::string route_name = m.route ? std::string(m.route->pattern) : "unmatched";
   if (auto refused = refuse_unmatched(m, target)) {

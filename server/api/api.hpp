@@ -9,6 +9,7 @@
 #include <string_view>
 
 #include "server/api/context.hpp"
+#include "server/api/pages.hpp"
 #include "server/http/message.hpp"
 #include "server/storage/store.hpp"
 
@@ -29,6 +30,11 @@ class Api {
   static http::Response refusal(int status, std::string_view detail);
 
   Metrics& metrics();
+  // The services handlers use (for the pages served beside the API).
+  Context& context();
+  // Serves `pages` (not owned; must outlive the Api) for the paths they
+  // claim; every other path goes to the API routes. Call before serving.
+  void set_pages(Pages* pages);
 
  private:
   struct Impl;

@@ -26,11 +26,11 @@ std::string_view bearer_token(const http::Request& request) {
   return value;
 }
 
+}  // namespace
+
 Caller caller_of(const storage::ApiToken& token) {
   return Caller{token.id, token.name, token.role, token.depot_id};
 }
-
-}  // namespace
 
 std::string peer_address(const std::string& peer) {
   auto colon = peer.rfind(':');
@@ -41,23 +41,31 @@ Authenticator::Authenticator(storage::Store& store, const Clock& clock, AuthLimi
     : store_(store), clock_(clock), limits_(limits) {}
 
 std::variant<Caller, http::Response> Authenticator::authenticate(const http::Request& request) {
-  // The throttle applies to failing tokens only: a valid token behind the
-  // same address (a shared NAT) keeps working while a guesser is held off.
-  const std::string address = peer_address(request.peer);
-  auto refuse = [&](std::string_view detail) -> http::Response {
-    if (throttled(address))
-      return problem(ProblemKind::too_many_requests,
-                     "too many requests with bad tokens from this address; wait a minute");
-    note_failure(address);
-    return problem(ProblemKind::unauthorized, detail);
-  };
   std::string_view raw = bearer_token(request);
   if (raw.empty())
     return problem(ProblemKind::unauthorized, "send Authorization: Bearer <token>");
+  auto checked = check_token(raw, request.peer);
+  if (auto* refused = std::get_if<AuthRefusal>(&checked)) return problem(refused->kind, refused->detail);
+  return std::get<Caller>(checked);
+}
+
+std::variant<Caller, AuthRefusal> Authenticator::check_token(std::string_view raw,
+                                                             const std::string& peer) {
+  // The throttle applies to failing tokens only: a valid token behind the
+  // same address (a shared NAT) keeps working while a guesser is held off.
+  const std::string address = peer_address(peer);
+  auto refuse = [&](std::string detail) -> AuthRefusal {
+    if (throttled(address))
+      return {ProblemKind::too_many_requests,
+              "too many requests with bad tokens from this address; wait a minute"};
+    note_failure(address);
+    return {ProblemKind::unauthorized, std::move(detail)};
+  };
+  if (raw.empty()) return refuse("no token given");
   const storage::TokenHash hash = storage::hash_token(raw);
   // Expiry is checked on every request, cached or not, so a token stops
   // working at its expires_at and not up to cache_ttl later.
-  auto unexpired = [&](const storage::ApiToken& token) -> std::variant<Caller, http::Response> {
+  auto unexpired = [&](const storage::ApiToken& token) -> std::variant<Caller, AuthRefusal> {
     if (storage::expired(token, clock_.now()))
       return refuse("token expired at " + models::wire::format_timestamp(*token.expires_at) +
                     "; ask an admin for a new one");
@@ -67,7 +75,7 @@ std::variant<Caller, http::Response> Authenticator::authenticate(const http::Req
   auto found = store_.find_token(hash);
   if (!found) {
     if (found.error().code != storage::StoreErrc::not_found)
-      return problem(ProblemKind::storage_unavailable, "token store unavailable; retry");
+      return AuthRefusal{ProblemKind::storage_unavailable, "token store unavailable; retry"};
     return refuse("unknown token");
   }
   if (found->revoked_at) return refuse("token revoked");

@@ -19,6 +19,7 @@
 #include <variant>
 
 #include "server/api/clock.hpp"
+#include "server/api/problem.hpp"
 #include "server/http/message.hpp"
 #include "server/storage/store.hpp"
 
@@ -59,12 +60,22 @@ struct AuthLimits {
   std::chrono::seconds cache_ttl{2};
 };
 
+// Why a token was refused: the problem kind (unauthorized, too_many_requests,
+// storage_unavailable) and a sentence for a person.
+struct AuthRefusal {
+  ProblemKind kind = ProblemKind::unauthorized;
+  std::string detail;
+};
+
 class Authenticator {
  public:
   Authenticator(storage::Store& store, const Clock& clock, AuthLimits limits = {});
 
   // The caller, or the problem response (401, 429, 503) to send.
   std::variant<Caller, http::Response> authenticate(const http::Request& request);
+  // Checks a raw token presented from `peer` ("host:port") exactly as a
+  // Bearer token is checked, with the same throttle (the dashboard's sign-in).
+  std::variant<Caller, AuthRefusal> check_token(std::string_view raw, const std::string& peer);
   // Drops every cached token (call after a revocation).
   void forget_cached();
 
@@ -85,6 +96,9 @@ class Authenticator {
   std::map<std::array<unsigned char, 32>, Cached> cache_;
   std::map<std::string, std::pair<Steady::time_point, int>> failures_;  // address -> (window start, count)
 };
+
+// The caller a token stands for.
+Caller caller_of(const storage::ApiToken& token);
 
 // The address part of "host:port" (or "[v6]:port").
 std::string peer_address(const std::string& peer);

@@ -89,7 +89,8 @@ const std::vector<std::string>& config_keys() {
       "log_level",        "backup_dir",     "body_limit_bytes",
       "header_limit_bytes", "header_timeout_ms", "body_timeout_ms",
       "write_timeout_ms", "max_connections", "io_threads",
-      "worker_threads",   "max_db_bytes"};
+      "worker_threads",   "max_db_bytes",
+      "secure_cookies",   "session_hours"};
   return kKeys;
 }
 
@@ -155,6 +156,12 @@ models::Result<Config> make_config(const Settings& s) {
   if (auto r = apply_limits(s, c.server); !r) return r.error();
   if (auto r = read_number<std::uint64_t>(s, "max_db_bytes", 0, std::uint64_t{1} << 50, c.max_db_bytes); !r)
     return r.error();
+  if (auto it = s.find("secure_cookies"); it != s.end()) {
+    if (it->second != "true" && it->second != "false")
+      return models::Error{"secure_cookies", "'" + it->second + "' is not true or false", "true or false"};
+    c.secure_cookies = it->second == "true";
+  }
+  if (auto r = read_number<int>(s, "session_hours", 1, 168, c.session_hours); !r) return r.error();
   return c;
 }
 

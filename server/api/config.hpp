@@ -19,6 +19,9 @@
 //   max_db_bytes        cap on the database file size, 0 = none (default);
 //                       a write that would pass it gets 507 storage-full and
 //                       stores nothing, exactly as on a full disk
+//   secure_cookies      true when a TLS proxy fronts pbfleetd: the dashboard's
+//                       cookies then carry Secure (default false)
+//   session_hours       how long a dashboard sign-in lasts, 1..168 (default 12)
 #pragma once
 
 #include <cstdint>
@@ -41,6 +44,8 @@ struct Config {
   std::string log_level = "info";
   std::uint64_t max_db_bytes = 0;    // 0 = no cap (see storage SqliteOptions)
   http::ServerOptions server;        // limits and threads
+  bool secure_cookies = false;       // dashboard cookies carry Secure
+  int session_hours = 12;            // dashboard session lifetime
 };
 
 using Settings = std::map<std::string, std::string>;

@@ -34,7 +34,8 @@ Request to_request(bhttp::request<bhttp::string_body>&& in, const std::string& p
 bhttp::response<bhttp::string_body> to_beast(Response&& in, bool keep_alive) {
   bhttp::response<bhttp::string_body> out{static_cast<bhttp::status>(in.status), 11};
   out.set(bhttp::field::content_type, in.content_type);
-  for (auto& [name, value] : in.headers) out.set(name, value);
+  // insert, not set: a response may carry a header twice (Set-Cookie).
+  for (auto& [name, value] : in.headers) out.insert(name, value);
   out.body() = std::move(in.body);
   out.keep_alive(keep_alive);
   out.prepare_payload();

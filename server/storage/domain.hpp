@@ -125,6 +125,17 @@ struct ApiToken {
   TokenHash hash;  // filled on read; compare with tokens.hpp same_token_hash
 };
 
+// A dashboard sign-in session. The store keeps only the SHA-256 of the
+// cookie value; `token` is the API token it was opened with, as stored now
+// (revoked_at and expires_at end the session too).
+struct WebSession {
+  Id id = 0;
+  std::string csrf;  // per-session CSRF secret (hex), put into every form
+  std::chrono::sys_seconds created_at{};
+  std::chrono::sys_seconds expires_at{};
+  ApiToken token;
+};
+
 // True when the token has an expiry and `now` has reached it.
 [[nodiscard]] inline bool expired(const ApiToken& token, std::chrono::sys_seconds now) {
   return token.expires_at && now >= *token.expires_at;

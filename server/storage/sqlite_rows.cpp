@@ -128,18 +128,19 @@ void read_measurement(const Statement& s, ReadingMeasurement& m) {
   m.water_added = s.int_at(8) != 0;
 }
 
-ApiToken read_token(const Statement& s) {
+ApiToken read_token(const Statement& s, int first) {
+  const int c = first;
   ApiToken t;
-  t.id = s.int_at(0);
-  t.name = s.text_at(1);
-  t.role = parse_role(s.text_at(2)).value_or(Role::crew);
-  t.depot_id = s.opt_int_at(3);
-  t.created_at = seconds_from_db(s.int_at(4));
-  if (auto at = s.opt_int_at(5)) t.revoked_at = seconds_from_db(*at);
-  const auto hash = s.blob_at(6);
+  t.id = s.int_at(c);
+  t.name = s.text_at(c + 1);
+  t.role = parse_role(s.text_at(c + 2)).value_or(Role::crew);
+  t.depot_id = s.opt_int_at(c + 3);
+  t.created_at = seconds_from_db(s.int_at(c + 4));
+  if (auto at = s.opt_int_at(c + 5)) t.revoked_at = seconds_from_db(*at);
+  const auto hash = s.blob_at(c + 6);
   if (hash.size() == t.hash.bytes.size())
     std::memcpy(t.hash.bytes.data(), hash.data(), hash.size());
-  if (auto at = s.opt_int_at(7)) t.expires_at = seconds_from_db(*at);
+  if (auto at = s.opt_int_at(c + 7)) t.expires_at = seconds_from_db(*at);
   return t;
 }
 

@@ -43,7 +43,8 @@ Battery read_battery(const Statement& s);
 StoredReading read_reading(const Statement& s);
 // Overwrites `m` with the row, reusing its cell_sg capacity.
 void read_measurement(const Statement& s, ReadingMeasurement& m);
-ApiToken read_token(const Statement& s);
+// A kTokenSelect row whose columns start at `first`.
+ApiToken read_token(const Statement& s, int first = 0);
 
 // Raw cell SGs as stored: shortest round-trip decimals joined by ';'.
 std::string encode_cell_sg(const std::vector<models::SpecificGravity>& cells);

@@ -74,6 +74,11 @@ class SqliteStore final : public Store {
   StoreResult<ApiToken> find_token(const TokenHash& hash) override;
   StoreResult<Page<ApiToken>> list_tokens(const PageRequest& page) override;
   StoreResult<ApiToken> revoke_token(Id id, std::chrono::sys_seconds at) override;
+  StoreResult<WebSession> create_web_session(const TokenHash& session_hash, Id token_id,
+                                             std::string_view csrf, std::chrono::sys_seconds at,
+                                             std::chrono::sys_seconds expires_at) override;
+  StoreResult<WebSession> find_web_session(const TokenHash& session_hash) override;
+  StoreResult<Done> end_web_session(const TokenHash& session_hash) override;
 
   StoreResult<BackupReport> backup_to(const std::filesystem::path& path) override;
   StoreResult<DurabilitySettings> durability() override;

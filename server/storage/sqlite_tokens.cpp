@@ -71,7 +71,73 @@ StoreResult<ApiToken> SqliteStore::revoke_token(Id id, std::chrono::sys_seconds 
         .bind(1, id)
         .bind(2, to_db(at))
         .run();
+    db.prepare("DELETE FROM web_sessions WHERE token_id = ?1").bind(1, id).run();
     return token_by_id(db, id);
+  });
+}
+
+namespace {
+
+// The session columns, then the token's as in kTokenSelect.
+constexpr std::string_view kSessionSelect =
+    "SELECT s.id, s.csrf, s.created_at, s.expires_at,"
+    " t.id, t.name, t.role, t.depot_id, t.created_at, t.revoked_at, t.hash, t.expires_at"
+    " FROM web_sessions s JOIN api_tokens t ON t.id = s.token_id";
+constexpr int kSessionTokenColumn = 4;
+
+WebSession read_session(const Statement& s) {
+  WebSession w;
+  w.id = s.int_at(0);
+  w.csrf = s.text_at(1);
+  w.created_at = seconds_from_db(s.int_at(2));
+  w.expires_at = seconds_from_db(s.int_at(3));
+  w.token = read_token(s, kSessionTokenColumn);
+  return w;
+}
+
+WebSession session_by_hash(Db& db, const TokenHash& hash) {
+  auto s = db.prepare(std::string(kSessionSelect) + " WHERE s.hash = ?1");
+  if (!s.bind_blob(1, hash.bytes.data(), hash.bytes.size()).step()) {
+    fail(StoreErrc::not_found, "no such session");
+  }
+  return read_session(s);
+}
+
+}  // namespace
+
+StoreResult<WebSession> SqliteStore::create_web_session(const TokenHash& session_hash,
+                                                        Id token_id, std::string_view csrf,
+                                                        std::chrono::sys_seconds at,
+                                                        std::chrono::sys_seconds expires_at) {
+  return write([&](Db& db) {
+    if (!db.prepare("SELECT 1 FROM api_tokens WHERE id = ?1").bind(1, token_id).step()) {
+      fail(StoreErrc::constraint, "no token with id " + std::to_string(token_id), "token_id");
+    }
+    if (expires_at <= at) fail(StoreErrc::invalid, "a session must end after it starts", "expires_at");
+    db.prepare("DELETE FROM web_sessions WHERE expires_at <= ?1").bind(1, to_db(at)).run();
+    db.prepare(
+          "INSERT INTO web_sessions (hash, token_id, csrf, created_at, expires_at)"
+          " VALUES (?1, ?2, ?3, ?4, ?5)")
+        .bind_blob(1, session_hash.bytes.data(), session_hash.bytes.size())
+        .bind(2, token_id)
+        .bind(3, csrf)
+        .bind(4, to_db(at))
+        .bind(5, to_db(expires_at))
+        .run();
+    return session_by_hash(db, session_hash);
+  });
+}
+
+StoreResult<WebSession> SqliteStore::find_web_session(const TokenHash& session_hash) {
+  return read([&](Db& db) { return session_by_hash(db, session_hash); });
+}
+
+StoreResult<Done> SqliteStore::end_web_session(const TokenHash& session_hash) {
+  return write([&](Db& db) {
+    db.prepare("DELETE FROM web_sessions WHERE hash = ?1")
+        .bind_blob(1, session_hash.bytes.data(), session_hash.bytes.size())
+        .run();
+    return Done{};
   });
 }
 

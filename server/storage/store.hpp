@@ -245,7 +245,21 @@ class Store {
   // as it is (revoked_at, expires_at): the caller decides.
   virtual StoreResult<ApiToken> find_token(const TokenHash& hash) = 0;
   virtual StoreResult<Page<ApiToken>> list_tokens(const PageRequest& page) = 0;
+  // Revokes a token and ends its dashboard sessions, in one transaction.
   virtual StoreResult<ApiToken> revoke_token(Id id, std::chrono::sys_seconds at) = 0;
+
+  // Dashboard sessions: only the SHA-256 of the cookie value is stored.
+  // create also drops sessions that expired before `at`; token_id must name
+  // an existing token (constraint otherwise).
+  virtual StoreResult<WebSession> create_web_session(const TokenHash& session_hash, Id token_id,
+                                                     std::string_view csrf,
+                                                     std::chrono::sys_seconds at,
+                                                     std::chrono::sys_seconds expires_at) = 0;
+  // not_found for an unknown or ended session; an expired one, or one whose
+  // token is revoked or expired, is returned as it is: the caller decides.
+  virtual StoreResult<WebSession> find_web_session(const TokenHash& session_hash) = 0;
+  // Ends a session (Done also when there is no such session).
+  virtual StoreResult<Done> end_web_session(const TokenHash& session_hash) = 0;
 
   // Operations.
   // Consistent online copy to `path` (must not exist), then integrity_check

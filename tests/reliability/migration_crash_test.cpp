@@ -1,11 +1,12 @@
 // RELIABILITY-TESTS row 23: pbfleetd killed with SIGKILL while it migrates
-// a version-1 database to the current schema. After every kill the file is
-// at version 1 (no expires_at column) or fully migrated, never in between,
-// and passes integrity_check; a normal start then finishes the migration.
+// a version-1 database to the current schema. Each migration is one
+// transaction, so after every kill the file is wholly at version 1, 2 or 3
+// (never inside a migration) and passes integrity_check; a normal start then
+// finishes the migration.
 //
 // The version-1 file is made by letting the daemon create a current
-// database with data, then undoing migration 0002 (its only change is the
-// api_tokens.expires_at column). Kill times are spread at random over the
+// database with data, then undoing migrations 0003 (the web_sessions table)
+// and 0002 (the api_tokens.expires_at column). Kill times are spread at random over the
 // daemon's measured start-up time, so runs land before, during and after
 // the migration. (tests/storage/sqlite_migrate_test.cpp kills a process
 // inside an open migration transaction deterministically.)
@@ -79,6 +80,7 @@ std::chrono::microseconds startup_time(const std::filesystem::path& db, const Te
 struct Shape {
   std::int64_t version = 0;
   std::int64_t expiry_column = 0;
+  std::int64_t sessions_table = 0;
   std::string integrity;
 };
 
@@ -86,22 +88,35 @@ Shape shape_of(const std::filesystem::path& db) {
   SqliteProbe probe(db);
   return {probe.integer("SELECT max(version) FROM schema_version"),
           probe.integer("SELECT count(*) FROM pragma_table_info('api_tokens') WHERE name = 'expires_at'"),
+          probe.integer("SELECT count(*) FROM sqlite_schema WHERE name = 'web_sessions'"),
           probe.integrity()};
 }
 
 }  // namespace
 
-TEST_CASE("a migration killed at random moments leaves version 1 or the new version, and a restart finishes it") {
+// Each migration runs in its own transaction: a kill leaves the database
+// exactly at one of the versions, each with its own shape.
+bool whole_version(const Shape& s) {
+  switch (s.version) {
+    case 1: return s.expiry_column == 0 && s.sessions_table == 0;
+    case 2: return s.expiry_column == 1 && s.sessions_table == 0;
+    case 3: return s.expiry_column == 1 && s.sessions_table == 1;
+    default: return false;
+  }
+}
+
+TEST_CASE("a migration killed at random moments leaves a whole version, and a restart finishes it") {
   TempDir dir("pbfleet-migrate");
   const auto v1 = dir / "v1.db";
   {
-    // A current database with a fleet and tokens, then migration 0002 undone.
+    // A current database with a fleet and tokens, then migrations 0002 and 0003 undone.
     LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
     REQUIRE(fleet.client("crew").post("/v1/readings", good_reading(fleet.serials("North Yard")[0], "m-1", 1)).status == 201);
     REQUIRE(fleet.server().terminate() == 0);
     {
       SqliteProbe probe(fleet.db());
-      REQUIRE(probe.integer("SELECT max(version) FROM schema_version") == 2);
+      REQUIRE(probe.integer("SELECT max(version) FROM schema_version") == 3);
+      probe.column("DROP TABLE web_sessions");
       probe.column("ALTER TABLE api_tokens DROP COLUMN expires_at");
       probe.column("DELETE FROM schema_version WHERE version >= 2");
       probe.column("PRAGMA wal_checkpoint(TRUNCATE)");
@@ -111,6 +126,7 @@ TEST_CASE("a migration killed at random moments leaves version 1 or the new vers
   const Shape old = shape_of(v1);
   REQUIRE(old.version == 1);
   REQUIRE(old.expiry_column == 0);
+  REQUIRE(old.sessions_table == 0);
 
   const auto work = dir / "work.db";
   std::filesystem::copy_file(v1, work);
@@ -119,7 +135,7 @@ TEST_CASE("a migration killed at random moments leaves version 1 or the new vers
   std::mt19937 rng(std::random_device{}());
   std::uniform_int_distribution<long> delay_us(0, full.count() + full.count() / 5);
 
-  int at_old = 0, at_new = 0, finished_first = 0;
+  int at_old = 0, between = 0, at_new = 0, finished_first = 0;
   for (int run = 0; run < 20; ++run) {
     CAPTURE(run);
     std::filesystem::remove(work);
@@ -133,12 +149,12 @@ TEST_CASE("a migration killed at random moments leaves version 1 or the new vers
     const Shape after = shape_of(work);
     CAPTURE(after.version);
     CAPTURE(after.expiry_column);
+    CAPTURE(after.sessions_table);
     CHECK(after.integrity == "ok");
-    const bool is_old = after.version == 1 && after.expiry_column == 0;
-    const bool is_new = after.version == 2 && after.expiry_column == 1;
-    CHECK((is_old || is_new));
-    at_old += is_old;
-    at_new += is_new;
+    CHECK(whole_version(after));
+    at_old += after.version == 1;
+    between += after.version == 2;
+    at_new += after.version == 3;
     // A normal start finishes the migration and serves the old data.
     ServerConfig config;
     config.db = work;
@@ -147,14 +163,15 @@ TEST_CASE("a migration killed at random moments leaves version 1 or the new vers
     ServerProcess restarted(config);
     CHECK(restarted.terminate() == 0);
     const Shape done = shape_of(work);
-    CHECK(done.version == 2);
-    CHECK(done.expiry_column == 1);
+    CHECK(done.version == 3);
+    CHECK(whole_version(done));
     SqliteProbe probe(work);
     CHECK(probe.integer("SELECT count(*) FROM readings WHERE reading_id = 'm-1'") == 1);
     CHECK(probe.integer("SELECT count(*) FROM api_tokens WHERE expires_at IS NOT NULL") == 0);
   }
-  MESSAGE("kills left " << at_old << " at version 1 and " << at_new << " at version 2");
-  CHECK(at_old + at_new == 20);
+  MESSAGE("kills left " << at_old << " at version 1, " << between << " at 2 and " << at_new
+                         << " at 3");
+  CHECK(at_old + between + at_new == 20);
   CHECK(finished_first == 0);
 }
 

@@ -146,7 +146,12 @@ HttpReply HttpClient::send(std::string_view method, std::string_view target, std
   auto res = parser.release();
   HttpReply reply;
   reply.status = static_cast<int>(res.result_int());
-  for (const auto& field : res) reply.headers[lower(field.name_string())] = std::string(field.value());
+  // A header sent more than once (Set-Cookie) keeps every value, one per line.
+  for (const auto& field : res) {
+    auto& value = reply.headers[lower(field.name_string())];
+    if (!value.empty()) value += '\n';
+    value += std::string(field.value());
+  }
   reply.body = std::move(res.body());
   if (!res.keep_alive()) im.drop();
   return reply;

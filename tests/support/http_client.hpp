@@ -24,7 +24,7 @@ struct TransportError : std::runtime_error {
 
 struct HttpReply {
   int status = 0;
-  std::map<std::string, std::string> headers;  // lower-case names
+  std::map<std::string, std::string> headers;  // lower-case names; repeats joined by '\n'
   std::string body;
 
   // Header value or empty. `name` lower-case.

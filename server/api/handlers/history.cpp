@@ -5,7 +5,7 @@
 #include "server/api/handlers/handlers.hpp"
 #include "server/api/json_text.hpp"
 #include "server/api/reading_codec.hpp"
-#include "server/api/services/fleet_index.hpp"
+#include "server/api/services/history.hpp"
 
 namespace pbfleet::api::handlers {
 
@@ -14,11 +14,6 @@ using nlohmann::json;
 using Bound = std::optional<std::chrono::sys_seconds>;
 
 namespace {
-
-analytics::EventKind event_kind(storage::EventKind kind) {
-  return kind == storage::EventKind::retired ? analytics::EventKind::retired
-                                             : analytics::EventKind::fitted;
-}
 
 // ?from= and ?to= (RFC 3339), either optional.
 bool read_bounds(const Call& call, Bound& from, Bound& to, std::vector<ProblemField>& errors) {
@@ -59,19 +54,9 @@ http::Response battery_history(const Call& call) {
   if (!battery) return store_problem(battery.error());
   if (!in_scope(call, battery->depot_id))
     return problem(ProblemKind::not_found, "no battery with serial '" + call.param("serial") + "'");
-  // All readings up to `to`: derived values carry state (the water hold)
-  // from before `from`.
-  auto readings = store.readings_for(battery->serial, std::nullopt, to);
-  auto events = store.battery_events(battery->serial);
-  auto context = context_for(store, battery.value());
-  if (!readings) return store_problem(readings.error());
-  if (!events) return store_problem(events.error());
-  if (!context) return store_problem(context.error());
-
-  analytics::BatteryHistory history{context.value(), {}, {}};
-  for (const auto& r : *readings) history.readings.push_back(point_of(r));
-  for (const auto& e : *events) history.events.push_back({e.at, event_kind(e.kind), e.detail});
-  const auto view = analytics::history_view(history, analytics::AnalyticsSettings{}, from, to);
+  auto loaded = load_history(store, battery.value(), from, to);
+  if (!loaded) return store_problem(loaded.error());
+  const auto& view = loaded->view;
 
   // The readings (hundreds, each with its derived values) are written as
   // text: building them as an nlohmann tree cost more than the query and
@@ -81,8 +66,7 @@ http::Response battery_history(const Call& call) {
   JsonText out(body);
   out.begin_array();
   std::size_t row = 0;
-  for (const auto& r : *readings) {
-    if ((from && r.taken_at < *from) || (to && r.taken_at > *to)) continue;
+  for (const auto& r : loaded->readings) {
     out.begin_object();
     write_reading_members(out, r);
     if (row < view.rows.size()) write_derived(out.key("derived"), view.rows[row++].derived);
