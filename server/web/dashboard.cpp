@@ -135,7 +135,7 @@ http::Response Dashboard::route(const http::Request& request, const api::Target&
     std::map<std::string, std::string> params;
     if (!matches(r.pattern, target.path, &params)) continue;
     path_known = true;
-    if (r.method == request.method || (r.method == "GET" && request.method == "HEAD")) {
+    if (r.method == request.method) {
       found = &r;
       call.params = std::move(params);
       break;

@@ -78,14 +78,19 @@ std::string charts(const analytics::HistoryView& view) {
   out += "<figure><figcaption>Corrected SG, 25 °C basis (" + std::to_string(sg.points.size()) +
          " readings with cells)</figcaption>" + time_chart_svg(sg) + "</figure>";
   std::string flagged;
+  int flagged_count = 0;
   for (auto it = view.rows.rbegin(); it != view.rows.rend(); ++it) {
     const std::string words = flag_words(it->derived.flags);
     if (words.empty()) continue;
+    ++flagged_count;
     flagged += "<li><time>" + time_text(it->taken_at) + "</time> " + escape(words) + "</li>";
   }
+  // A short list stays open; a long one (years of rounds) opens on demand.
+  constexpr int kOpenUpTo = 12;
   out += flagged.empty() ? "<p>No reading is flagged.</p>"
-                         : "<details open><summary>Flagged readings, newest first</summary><ul id=\"flagged-list\">" +
-                               flagged + "</ul></details>";
+                         : std::string("<details") + (flagged_count <= kOpenUpTo ? " open" : "") +
+                               "><summary>Flagged readings (" + std::to_string(flagged_count) +
+                               "), newest first</summary><ul id=\"flagged-list\">" + flagged + "</ul></details>";
   return out + "</section>";
 }
 

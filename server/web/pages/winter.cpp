@@ -54,17 +54,18 @@ std::string risk_table(const std::vector<const analytics::WinterRisk*>& rows, st
     h.text(r->serial) << "\" data-level=\"" << analytics::to_string(r->level) << "\"><td>"
                       << level_badge(analytics::to_string(r->level)) << "</td><td><a href=\"/ui/batteries/"
                       << url_encode(r->serial) << "\">";
-    h.text(r->serial) << "</a></td><td>";
-    h.text(r->depot_name) << "</td><td>";
-    h.text(r->vehicle_code) << "</td><td class=\"num soc\">" << number(r->projected_soc_percent, 0)
-                            << "</td><td class=\"num crank\">" << number(r->crank_margin, 2)
-                            << "</td><td class=\"num freeze\">" << number(r->freeze_margin_c, 1)
-                            << "</td><td class=\"reasons\">";
+    h.text(r->serial) << "</a></td><td data-label=\"Depot\">";
+    h.text(r->depot_name) << "</td><td data-label=\"Vehicle\">";
+    h.text(r->vehicle_code) << "</td><td class=\"num soc\" data-label=\"Projected SOC %\">"
+                            << number(r->projected_soc_percent, 0)
+                            << "</td><td class=\"num crank\" data-label=\"Crank margin\">" << number(r->crank_margin, 2)
+                            << "</td><td class=\"num freeze\" data-label=\"Freeze margin °C\">"
+                            << number(r->freeze_margin_c, 1) << "</td><td class=\"reasons\" data-label=\"Why\">";
     for (std::size_t i = 0; i < r->reasons.size(); ++i) {
       if (i) h << "<br>";
       h.text(r->reasons[i]);
     }
-    h << "</td><td class=\"action\">";
+    h << "</td><td class=\"action\" data-label=\"What to do\">";
     h.text(r->action);
     if (!r->cautions.empty()) h << " <a class=\"see-safety\" href=\"#safety\">⚠ safety</a>";
     h << "</td></tr>";
