@@ -157,8 +157,10 @@ class Browser:
         self.d.save_screenshot(os.path.join(self.artifacts, name + ".png"))
         self.d.set_window_size(size["width"], size["height"])
 
-    def sign_in(self, token):
+    def sign_in(self, token, shot=None):
         self.open("/ui/sign-in")
+        if shot:
+            self.shot(shot)
         self.d.find_element(By.ID, "token").send_keys(token)
         self.click_and_load("form.sign-in button")
         self.console_clean("sign-in")
@@ -229,6 +231,7 @@ def manager_checks(b, api, tokens):
 def technician_checks(b, api, tokens, serial):
     b.sign_in(tokens["technician"])
     check("/ui/batteries" in b.d.current_url, "the technician lands on the battery list")
+    b.shot("batteries")
     status, history = api.call("GET", f"/v1/batteries/{serial}/history")
     readings = history["readings"]
     with_soc = sum(1 for r in readings if r["derived"].get("soc_percent") is not None)
@@ -312,7 +315,7 @@ def main():
             tokens[role] = made["token"]
         driver = make_driver()
         b = Browser(driver, base, args.artifacts)
-        b.sign_in(admin_token)
+        b.sign_in(admin_token, shot="sign-in")
         check(b.d.current_url.endswith("/ui/winter"), "the admin signs in")
         b.sign_out()
         manager_checks(b, admin, tokens)

@@ -225,3 +225,33 @@ TEST_CASE("bad tokens at the sign-in page are throttled per address like Bearer 
 }
 
 }  // namespace pbfleet::testing
+
+namespace pbfleet::testing {
+
+TEST_CASE("text from the database is escaped on every page it appears on") {
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  auto admin = fleet.client("admin");
+  const std::string hostile = "Q<b onmouseover=alert(1)>x";  // serials may not hold '/'
+  const auto made = admin.post("/v1/batteries", {{"serial", hostile}, {"chemistry", "flooded"}, {"nominal_v", 12},
+                                                 {"cells", 6}, {"rated_cca_a", 700}, {"installed_on", "2025-10-01"},
+                                                 {"vehicle_id", fleet.vehicle_id("TR-101")}});
+  REQUIRE(made.status == 201);
+  auto reading = good_reading(hostile, "esc-1", 1);
+  reading["note"] = "<img src=x onerror=alert(1)>";
+  REQUIRE(admin.post("/v1/readings", reading).status == 201);
+  WebSession web(fleet.server().port());
+  REQUIRE(web.sign_in(fleet.token("admin")).status == 303);
+  const std::string encoded = "Q%3Cb%20onmouseover%3Dalert(1)%3Ex";
+  const std::vector<std::string> pages{"/ui/winter", "/ui/batteries", "/ui/batteries/" + encoded, "/ui/overdue"};
+  for (const auto& page : pages) {
+    CAPTURE(page);
+    const auto r = web.get(page);
+    CHECK(r.status == 200);
+    CHECK(r.body.find("<b onmouseover") == std::string::npos);
+    CHECK(r.body.find("<img src=x") == std::string::npos);
+    CHECK(r.body.find("Q&lt;b onmouseover=alert(1)&gt;x") != std::string::npos);
+  }
+  CHECK(web.get("/ui/batteries/" + encoded).body.find("&lt;img src=x onerror=alert(1)&gt;") != std::string::npos);
+}
+
+}  // namespace pbfleet::testing

@@ -148,7 +148,7 @@ std::string readings_section(const api::LoadedHistory& loaded) {
                     "<table id=\"readings-table\"><thead><tr><th scope=\"col\">Taken (UTC)</th>"
                     "<th scope=\"col\">OCV V</th><th scope=\"col\">Rest h</th><th scope=\"col\">Temp</th>"
                     "<th scope=\"col\">Mean SG raw</th><th scope=\"col\">SG corrected</th>"
-                    "<th scope=\"col\">SOC %</th><th scope=\"col\">Flags</th></tr></thead><tbody>";
+                    "<th scope=\"col\">SOC %</th><th scope=\"col\">Flags</th><th scope=\"col\">Note</th></tr></thead><tbody>";
   out.reserve(out.size() + rows.size() * 400);
   for (std::size_t i = rows.size(); i-- > 0;) {
     const auto& r = rows[i];
@@ -166,7 +166,8 @@ std::string readings_section(const api::LoadedHistory& loaded) {
            "</td><td class=\"num\">" + temp + "</td><td class=\"num\">" + number(r.raw_mean_sg, 3) +
            "</td><td class=\"num\">" + number(d.corrected_sg, 3) + "</td><td class=\"num\">" +
            (d.soc_percent ? number(d.soc_percent, 0) + " ± " + number(d.soc_uncertainty_percent, 0) : "–") +
-           "</td><td>" + escape(flags) + "</td></tr>";
+           "</td><td class=\"flags\">" + escape(flags) + "</td><td>" +
+           (i < loaded.readings.size() ? escape(loaded.readings[i].note) : "") + "</td></tr>";
   }
   return out + "</tbody></table></section>";
 }
