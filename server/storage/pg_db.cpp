@@ -108,6 +108,43 @@ bool bytea_into(const pqxx::field& f, unsigned char* out, std::size_t size) {
   return true;
 }
 
+void ArrayLiteral::next() {
+  if (!first_) out_ += ',';
+  first_ = false;
+}
+
+void ArrayLiteral::text(std::string_view value) {
+  next();
+  out_ += '"';
+  for (char c : value) {
+    if (c == '"' || c == '\\') out_ += '\\';
+    out_ += c;
+  }
+  out_ += '"';
+}
+
+void ArrayLiteral::integer(std::int64_t value) {
+  next();
+  out_ += std::to_string(value);
+}
+
+void ArrayLiteral::number(double value) {
+  next();
+  char buffer[32];
+  const auto r = std::to_chars(buffer, buffer + sizeof buffer, value);
+  out_.append(buffer, r.ptr);
+}
+
+void ArrayLiteral::boolean(bool value) {
+  next();
+  out_ += value ? 't' : 'f';
+}
+
+void ArrayLiteral::null() {
+  next();
+  out_ += "NULL";
+}
+
 std::optional<double> opt_double(const pqxx::field& f) {
   if (f.is_null()) return std::nullopt;
   return f.as<double>();

@@ -53,6 +53,29 @@ std::string bytea_param(const unsigned char* data, std::size_t size);
 // false when the column is not that long.
 bool bytea_into(const pqxx::field& f, unsigned char* out, std::size_t size);
 
+// A PostgreSQL array literal ("{...}") built element by element, passed as
+// one text parameter and cast in SQL ($1::text[]), so many rows travel in
+// one statement (INSERT ... SELECT FROM unnest(...)).
+class ArrayLiteral {
+ public:
+  void text(std::string_view value);  // quoted and escaped
+  void integer(std::int64_t value);
+  void number(double value);          // shortest round-trip decimal
+  void boolean(bool value);
+  void null();
+  template <class T>
+  void number(const std::optional<T>& value) {
+    value ? number(static_cast<double>(*value)) : null();
+  }
+  void opt_text(const std::optional<std::string>& value) { value ? text(*value) : null(); }
+  [[nodiscard]] std::string str() const { return out_ + "}"; }
+
+ private:
+  void next();
+  std::string out_ = "{";
+  bool first_ = true;
+};
+
 // Nullable columns.
 std::optional<double> opt_double(const pqxx::field& f);
 std::optional<std::int64_t> opt_int(const pqxx::field& f);

@@ -1,5 +1,6 @@
 // Depots, vehicles and batteries (with their fitted/retired events) on
-// PostgreSQL. Nothing is cached: another instance's changes are seen at once.
+// PostgreSQL. get_battery keeps a short-lived cache (pg_store.hpp); every
+// other read goes to the server.
 #include <algorithm>
 
 #include "server/storage/pg_rows.hpp"
@@ -103,7 +104,7 @@ std::vector<Battery> batteries_matching(Tx& tx, const BatteryFilter& f) {
 // ---- depots -------------------------------------------------------------------
 
 StoreResult<Depot> PgStore::create_depot(const Depot& d) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     const auto id = run_unique(tx, "name", "a depot named '" + d.name + "' already exists",
                                "INSERT INTO depots (name, time_zone, design_low_c)"
                                " VALUES ($1, $2, $3) RETURNING id",
@@ -126,7 +127,7 @@ StoreResult<Page<Depot>> PgStore::list_depots(const PageRequest& page) {
 }
 
 StoreResult<Depot> PgStore::update_depot(const Depot& d) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     depot_by_id(tx, d.id);
     run_unique(tx, "name", "a depot named '" + d.name + "' already exists",
                "UPDATE depots SET name = $2, time_zone = $3, design_low_c = $4 WHERE id = $1",
@@ -138,7 +139,7 @@ StoreResult<Depot> PgStore::update_depot(const Depot& d) {
 // ---- vehicles -----------------------------------------------------------------
 
 StoreResult<Vehicle> PgStore::create_vehicle(const Vehicle& v) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     require_depot(tx, v.depot_id);
     const auto id = run_unique(
         tx, "code", "a vehicle with code '" + v.code + "' already exists",
@@ -166,7 +167,7 @@ StoreResult<Page<Vehicle>> PgStore::list_vehicles(const VehicleFilter& filter,
 }
 
 StoreResult<Vehicle> PgStore::update_vehicle(const Vehicle& v) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     vehicle_by_id(tx, v.id);
     require_depot(tx, v.depot_id);
     run_unique(tx, "code", "a vehicle with code '" + v.code + "' already exists",
@@ -181,7 +182,7 @@ StoreResult<Vehicle> PgStore::update_vehicle(const Vehicle& v) {
 // ---- batteries ----------------------------------------------------------------
 
 StoreResult<Battery> PgStore::create_battery(const Battery& b, sys_seconds at) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     if (b.vehicle_id) require_vehicle(tx, *b.vehicle_id);
     const auto id = run_unique(
         tx, "serial", "a battery with serial '" + b.serial + "' already exists",
@@ -200,7 +201,24 @@ StoreResult<Battery> PgStore::create_battery(const Battery& b, sys_seconds at) {
 }
 
 StoreResult<Battery> PgStore::get_battery(std::string_view serial) {
-  return read_one([&](Tx& tx) { return battery_by_serial(tx, serial); });
+  const std::uint64_t version = fleet_version_.load(std::memory_order_acquire);
+  const auto now = std::chrono::steady_clock::now();
+  std::string key(serial);
+  {
+    std::lock_guard lock(battery_cache_mutex_);
+    if (auto it = battery_cache_.find(key); it != battery_cache_.end() &&
+                                             it->second.fleet_version == version &&
+                                             now < it->second.until)
+      return it->second.battery;
+  }
+  auto found = read_one([&](Tx& tx) { return battery_by_serial(tx, serial); });
+  if (found) {
+    std::lock_guard lock(battery_cache_mutex_);
+    if (battery_cache_.size() >= kMaxCachedBatteries) battery_cache_.clear();
+    battery_cache_.insert_or_assign(std::move(key),
+                                    CachedBattery{*found, version, now + kBatteryCacheTtl});
+  }
+  return found;
 }
 
 StoreResult<Page<Battery>> PgStore::list_batteries(const BatteryFilter& f,
@@ -217,7 +235,7 @@ StoreResult<Page<Battery>> PgStore::list_batteries(const BatteryFilter& f,
 }
 
 StoreResult<Battery> PgStore::update_battery(const Battery& b) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     battery_by_serial(tx, b.serial);
     tx.exec_params(
         "UPDATE batteries SET chemistry = $2, nominal_v = $3, cells = $4, rated_cca_a = $5,"
@@ -231,7 +249,7 @@ StoreResult<Battery> PgStore::update_battery(const Battery& b) {
 }
 
 StoreResult<Battery> PgStore::fit_battery(std::string_view serial, Id vehicle_id, sys_seconds at) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     const Battery b = require_in_service(tx, serial);
     require_vehicle(tx, vehicle_id);
     tx.exec_params("UPDATE batteries SET vehicle_id = $2 WHERE id = $1", b.id, vehicle_id);
@@ -242,7 +260,7 @@ StoreResult<Battery> PgStore::fit_battery(std::string_view serial, Id vehicle_id
 
 StoreResult<Battery> PgStore::retire_battery(std::string_view serial, std::string_view reason,
                                              sys_seconds at) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::dbtransaction& tx) {
     const Battery b = require_in_service(tx, serial);
     tx.exec_params(
         "UPDATE batteries SET status = 'retired', retired_at = $2, retire_reason = $3,"

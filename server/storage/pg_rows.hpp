@@ -20,6 +20,17 @@ using sqlite::kReadingSelect;
 using sqlite::kTokenSelect;
 using sqlite::kVehicleSelect;
 
+// The column lists of kReadingSelect and kMeasurementSelect without their
+// FROM, for queries that bring their own (LATERAL per battery).
+inline constexpr std::string_view kReadingColumns =
+    "SELECT r.id, r.reading_id, r.battery_id, b.serial, r.taken_at, r.received_at, r.ocv_v,"
+    " r.cell_sg, r.electrolyte_temp_c, r.electrolyte_unit, r.ambient_temp_c, r.ambient_unit,"
+    " r.rest_h, r.load_test_a, r.load_test_end_v, r.logged_by, r.source, r.note,"
+    " r.after_charge, r.water_added";
+inline constexpr std::string_view kMeasurementColumns =
+    "SELECT r.taken_at, r.ocv_v, r.cell_sg, r.electrolyte_temp_c, r.rest_h, r.load_test_a,"
+    " r.load_test_end_v, r.after_charge, r.water_added";
+
 using sqlite::content_hash;
 using sqlite::ContentHash;
 using sqlite::decode_cell_sg_into;

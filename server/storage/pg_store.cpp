@@ -12,25 +12,38 @@ namespace pbfleet::storage {
 namespace pg {
 
 void prepare_statements(pqxx::connection& c) {
-  const std::string by_battery_newest =
-      " WHERE r.battery_id = $1 ORDER BY r.taken_at DESC, r.id DESC LIMIT $2";
   c.prepare("write_lock", "SELECT pg_advisory_xact_lock(" + std::to_string(kWriteLockKey) + ")");
-  c.prepare("battery_id", "SELECT id FROM batteries WHERE serial = $1");
+  c.prepare("battery_ids", "SELECT serial, id FROM batteries WHERE serial = ANY($1::text[])");
   c.prepare("battery_by_serial", std::string(kBatterySelect) + " WHERE b.serial = $1");
-  c.prepare("reading_insert",
+  c.prepare("readings_insert_many",
             "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
             " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h,"
             " load_test_a, load_test_end_v, logged_by, source, note, after_charge, water_added,"
-            " content_hash) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14,"
-            " $15, $16, $17, $18, $19) ON CONFLICT (reading_id) DO NOTHING RETURNING id");
-  c.prepare("reading_existing", "SELECT id, content_hash FROM readings WHERE reading_id = $1");
-  c.prepare("reading_by_id", std::string(kReadingSelect) + " WHERE r.id = $1");
+            " content_hash) SELECT * FROM unnest($1::text[], $2::bigint[], $3::bigint[],"
+            " $4::bigint[], $5::float8[], $6::text[], $7::float8[], $8::text[], $9::float8[],"
+            " $10::text[], $11::float8[], $12::float8[], $13::float8[], $14::text[], $15::text[],"
+            " $16::text[], $17::bool[], $18::bool[], $19::bytea[])"
+            " ON CONFLICT (reading_id) DO NOTHING RETURNING id, reading_id");
+  c.prepare("readings_existing",
+            "SELECT id, reading_id, content_hash FROM readings WHERE reading_id = ANY($1::text[])");
+  c.prepare("readings_by_ids", std::string(kReadingSelect) + " WHERE r.id = ANY($1::bigint[])");
+  c.prepare("readings_delete_ids", "DELETE FROM readings WHERE id = ANY($1::bigint[])");
   c.prepare("readings_added", "UPDATE counters SET value = value + $1 WHERE name = 'readings'");
-  c.prepare("last_readings", std::string(kReadingSelect) + by_battery_newest);
-  c.prepare("last_measurements", std::string(kMeasurementSelect) + by_battery_newest);
-  c.prepare("latest_settled", std::string(kReadingSelect) +
-                                  " WHERE r.battery_id = $1 AND r.rest_h >= $2"
-                                  " ORDER BY r.taken_at DESC, r.id DESC LIMIT 1");
+  // The last $2 readings of each battery in $1, one index range per battery
+  // (LATERAL), batteries in the order given, newest first within each.
+  const std::string per_battery =
+      " FROM unnest($1::bigint[]) WITH ORDINALITY AS wanted(id, place)"
+      " CROSS JOIN LATERAL (SELECT r.* FROM readings r WHERE r.battery_id = wanted.id";
+  const std::string newest = " ORDER BY r.taken_at DESC, r.id DESC LIMIT $2) r";
+  const std::string in_order = " ORDER BY wanted.place, r.taken_at DESC, r.id DESC";
+  c.prepare("last_readings",
+            std::string(kReadingColumns) + per_battery + newest +
+                " JOIN batteries b ON b.id = r.battery_id" + in_order);
+  c.prepare("last_measurements",
+            std::string(kMeasurementColumns) + ", r.battery_id" + per_battery + newest + in_order);
+  c.prepare("latest_settled", std::string(kReadingColumns) + per_battery +
+                                  " AND r.rest_h >= $2 ORDER BY r.taken_at DESC, r.id DESC LIMIT 1) r"
+                                  " JOIN batteries b ON b.id = r.battery_id" + in_order);
   c.prepare("token_by_hash", std::string(kTokenSelect) + " WHERE t.hash = $1");
 }
 

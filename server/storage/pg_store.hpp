@@ -16,11 +16,14 @@
 // INSERT ... ON CONFLICT DO NOTHING followed by a compare.
 //
 // Threading inside one process: one writer connection behind a mutex (group
-// commit: the reading writer hands it many requests' batches at once);
+// commit: the reading writer hands it many requests' batches at once, which
+// are stored set at a time, pg_append.cpp);
 // reads borrow a connection from a pool (up to `max_readers`) and run in one
 // REPEATABLE READ READ ONLY transaction, so a report sees one snapshot.
-// Nothing is cached between calls: another instance's writes are seen at
-// once.
+// Nothing is cached between calls except batteries by serial (get_battery,
+// the look-up every posted reading makes): this process's own fleet writes
+// drop the cache at once, another instance's are seen within
+// kBatteryCacheTtl (1 s).
 #pragma once
 
 #include <chrono>
@@ -32,6 +35,9 @@
 #include "server/storage/store.hpp"
 
 namespace pbfleet::storage {
+
+// How long get_battery may answer from this process's cache.
+inline constexpr std::chrono::milliseconds kBatteryCacheTtl{1000};
 
 struct PgOptions {
   std::size_t max_readers = 8;

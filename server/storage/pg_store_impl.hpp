@@ -6,11 +6,14 @@
 // pg_tokens.cpp; pg_migrate.cpp migrates.
 #pragma once
 
+#include <atomic>
+#include <chrono>
 #include <condition_variable>
 #include <memory>
 #include <mutex>
 #include <string>
 #include <type_traits>
+#include <unordered_map>
 #include <vector>
 
 #include "server/storage/pg_db.hpp"
@@ -136,6 +139,15 @@ class PgStore final : public Store {
     }
   }
 
+  // write() for depots, vehicles and batteries: afterwards this process's
+  // battery cache is looked up again.
+  template <class F>
+  auto write_fleet(F&& body) -> StoreResult<std::invoke_result_t<F&, pqxx::dbtransaction&>> {
+    auto result = write(std::forward<F>(body));
+    fleet_version_.fetch_add(1, std::memory_order_acq_rel);
+    return result;
+  }
+
   // Runs `body(pqxx::dbtransaction&)` on a pooled reader in one REPEATABLE
   // READ, READ ONLY transaction, so multi-query reads see one snapshot.
   template <class F>
@@ -169,6 +181,21 @@ class PgStore final : public Store {
   std::mutex write_mutex_;
   Connection writer_;  // GUARDED_BY(write_mutex_)
 
+  // Batteries by serial as last read, for at most kBatteryCacheTtl and only
+  // while this process made no fleet write since (fleet_version_). Every
+  // posted reading looks its battery up; without it each reading costs a
+  // round trip to the server. Changes made through another instance are
+  // seen within kBatteryCacheTtl.
+  struct CachedBattery {
+    Battery battery;
+    std::uint64_t fleet_version;
+    std::chrono::steady_clock::time_point until;
+  };
+  static constexpr std::size_t kMaxCachedBatteries = 100'000;
+  std::atomic<std::uint64_t> fleet_version_{0};
+  std::mutex battery_cache_mutex_;
+  std::unordered_map<std::string, CachedBattery> battery_cache_;  // GUARDED_BY(battery_cache_mutex_)
+
   std::mutex pool_mutex_;
   std::condition_variable pool_free_;
   std::vector<Connection> idle_readers_;  // GUARDED_BY(pool_mutex_)
@@ -177,6 +204,15 @@ class PgStore final : public Store {
 
 // Registers the prepared statements every connection uses (pg_store.cpp).
 void prepare_statements(pqxx::connection& c);
+
+// Storing readings set at a time (pg_append.cpp), inside a write transaction.
+// One outcome per batch, as Store::append_reading_batches promises.
+std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx,
+                                        const std::vector<std::vector<models::wire::ReadingInput>>& batches,
+                                        std::chrono::sys_seconds now);
+// Store::load_readings' body: throws PgError (not_found, conflict).
+std::size_t load_group(pqxx::transaction_base& tx,
+                       const std::vector<models::wire::ReadingInput>& batch, std::chrono::sys_seconds now);
 
 // Shared query helpers (pg_fleet.cpp).
 // The battery row for a serial; throws PgError(not_found, field "serial").

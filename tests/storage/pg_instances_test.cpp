@@ -54,11 +54,21 @@ PG_TEST_CASE("what one instance writes the other reads at once, history and repo
   const auto last = two.b->last_readings({}, 5).value();
   REQUIRE(last.size() == 1);
   CHECK(last[0].readings.size() == 2);
-  // A fleet change through B is seen by A's next look-up (no stale cache).
+  // A fleet change through B reaches A's battery look-up within the cache
+  // lifetime (1 s); A's own change shows at once.
+  CHECK(two.a->get_battery("NY-0001")->rated_cca_a.value == 800.0);  // now cached in A
   Battery changed = two.b->get_battery("NY-0001").value();
   changed.rated_cca_a = models::Amperes{650};
   REQUIRE(two.b->update_battery(changed).ok());
+  const auto changed_at = std::chrono::steady_clock::now();
+  while (two.a->get_battery("NY-0001")->rated_cca_a.value != 650.0 &&
+         std::chrono::steady_clock::now() - changed_at < std::chrono::seconds{3})
+    std::this_thread::sleep_for(std::chrono::milliseconds{20});
+  CHECK(std::chrono::steady_clock::now() - changed_at <= kBatteryCacheTtl + std::chrono::milliseconds{300});
   CHECK(two.a->get_battery("NY-0001")->rated_cca_a.value == 650.0);
+  changed.rated_cca_a = models::Amperes{700};
+  REQUIRE(two.a->update_battery(changed).ok());
+  CHECK(two.a->get_battery("NY-0001")->rated_cca_a.value == 700.0);
 }
 
 PG_TEST_CASE("one reading_id raced through two instances from 8 threads is stored once") {

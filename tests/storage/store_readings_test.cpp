@@ -5,6 +5,7 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <cstdio>
 #include <set>
 
 #include "fixture.hpp"
@@ -195,6 +196,46 @@ STORE_TEST_CASE("group commit accepts and refuses each batch on its own in one t
   for (const auto& r : all) CHECK(r.reading_id.rfind("g2-", 0) != 0);
 }
 
+STORE_TEST_CASE("texts with quotes, backslashes, braces, commas and NULL read back verbatim") {
+  Fleet<Backend> f;
+  auto r = reading("t\"1\\,{x}", "NY-0001", 1);
+  r.note = "cell \"3\" {low}, NULL; back\\slash 'quote' \xE2\x80\x94 ok";
+  r.logged_by = "NULL";
+  r.source = "";
+  REQUIRE(f.store->append_readings({r, reading("plain", "NY-0001", 2)}, at(3))->accepted());
+  const auto back = f.store->readings_for("NY-0001", {}, {}).value();
+  REQUIRE(back.size() == 2);
+  CHECK(back[0].reading_id == r.reading_id);
+  CHECK(back[0].note == r.note);
+  CHECK(back[0].logged_by == "NULL");
+  CHECK(back[0].source.empty());
+  CHECK_FALSE(back[0].ambient.has_value());
+  // The same text again is a replay, not a conflict.
+  CHECK(f.store->append_readings({r}, at(4))->replayed_count == 1);
+}
+
+STORE_TEST_CASE("a reading id new in two batches of one group is stored by the first, replayed by the second") {
+  Fleet<Backend> f;
+  auto changed = reading("twice", "NY-0001", 1);
+  changed.note = "other";
+  const auto outcomes = f.store->append_reading_batches(
+      {{reading("twice", "NY-0001", 1), reading("a", "NY-0001", 2)},
+       {reading("twice", "NY-0001", 1)},
+       {changed, reading("b", "NY-0001", 3)}},
+      at(5)).value();
+  REQUIRE(outcomes.size() == 3);
+  REQUIRE(outcomes[0].accepted());
+  CHECK(outcomes[0].stored == 2);
+  REQUIRE(outcomes[1].accepted());
+  CHECK(outcomes[1].replayed_count == 1);
+  CHECK(outcomes[1].readings[0].id == outcomes[0].readings[0].id);
+  REQUIRE_FALSE(outcomes[2].accepted());
+  CHECK(outcomes[2].problems.at(0).code == StoreErrc::conflict);
+  CHECK(outcomes[2].problems.at(0).row == 0);
+  CHECK(f.store->readings_count().value() == 2);
+  CHECK(f.store->readings_for("NY-0001", {}, {}).value().size() == 2);  // "b" left nothing
+}
+
 STORE_TEST_CASE("the bulk loader stores a batch in one go and refuses duplicates whole") {
   Fleet<Backend> f;
   const auto loaded = f.store->load_readings(week_round("bulk-", 50), at(1));
@@ -300,6 +341,33 @@ STORE_TEST_CASE("visiting last measurements gives last_readings' readings, measu
   const auto& newest = expected[0].readings.front();
   CHECK(newest.after_charge);
   CHECK(newest.electrolyte->value.value == doctest::Approx(-5));
+}
+
+STORE_TEST_CASE("report reads over more batteries than one chunk keep each battery's readings apart") {
+  // The PostgreSQL store asks for 500 batteries per statement; 510 cross it.
+  Fleet<Backend> f;
+  std::vector<ReadingInput> rows;
+  for (int i = 2; i <= 510; ++i) {
+    char serial[16];
+    std::snprintf(serial, sizeof serial, "NY-%04d", i);
+    REQUIRE(f.store->create_battery(testing::make_battery(serial, f.vehicle.id), at(0)).ok());
+    for (int k = 0; k < i % 3; ++k) rows.push_back(reading(std::string(serial) + "-" + std::to_string(k), serial, k + 1));
+  }
+  REQUIRE(f.store->load_readings(rows, at(9)).ok());
+  const auto last = f.store->last_readings({}, 5).value();
+  REQUIRE(last.size() == 510);
+  std::size_t visited = 0;
+  REQUIRE(f.store->visit_last_measurements({}, 5, [&](const Battery& b, auto newest_first) {
+    const auto& expected = last[visited++];
+    CHECK(b.serial == expected.battery.serial);
+    CHECK(newest_first.size() == expected.readings.size());
+  }).ok());
+  CHECK(visited == 510);
+  for (const auto& br : last) {
+    const int i = std::stoi(br.battery.serial.substr(3));
+    CHECK(br.readings.size() == static_cast<std::size_t>(i == 1 ? 0 : i % 3));
+    for (const auto& r : br.readings) CHECK(r.serial == br.battery.serial);
+  }
 }
 
 STORE_TEST_CASE("the latest settled reading skips readings with too little rest") {
