@@ -295,12 +295,6 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
   return outcomes;
 }
 
-std::size_t stored_in(const std::vector<AppendOutcome>& outcomes) {
-  std::size_t n = 0;
-  for (const auto& o : outcomes) n += o.stored;
-  return n;
-}
-
 }  // namespace
 
 std::vector<AppendOutcome> append_group(Tx& tx, const std::vector<std::vector<ReadingInput>>& batches,
@@ -323,8 +317,6 @@ std::vector<AppendOutcome> append_group(Tx& tx, const std::vector<std::vector<Re
   } else {
     outcomes = store_checked(tx, work, now);
   }
-  if (const std::size_t n = stored_in(outcomes); n > 0)
-    tx.exec_prepared("readings_added", static_cast<std::int64_t>(n));
   return outcomes;
 }
 
@@ -351,7 +343,6 @@ std::size_t load_group(Tx& tx, const std::vector<ReadingInput>& batch, sys_secon
           fail(StoreErrc::conflict, "reading_id '" + id + "' is already stored", "reading_id");
     }
   }
-  if (!batch.empty()) tx.exec_prepared("readings_added", static_cast<std::int64_t>(batch.size()));
   return batch.size();
 }
 

@@ -67,6 +67,14 @@ std::unique_ptr<pqxx::connection> connect(const std::string& conninfo,
   } catch (const std::exception& e) {
     fail(StoreErrc::unavailable, "cannot connect to PostgreSQL: " + first_line(e.what()));
   }
+  // libpqxx 6 would otherwise reconnect a broken connection by itself,
+  // losing the session settings below (synchronous_commit) and, on the
+  // writer, running the rest of a transaction in autocommit. A broken
+  // connection must throw; the store drops it and opens a fresh one.
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wdeprecated-declarations"
+  c->inhibit_reactivation(true);
+#pragma GCC diagnostic pop
   pqxx::nontransaction tx(*c);
   tx.exec("SET synchronous_commit = on");
   tx.exec("SET lock_timeout = " + std::to_string(settings.lock_timeout.count()));

@@ -104,7 +104,7 @@ std::vector<Battery> batteries_matching(Tx& tx, const BatteryFilter& f) {
 // ---- depots -------------------------------------------------------------------
 
 StoreResult<Depot> PgStore::create_depot(const Depot& d) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     const auto id = run_unique(tx, "name", "a depot named '" + d.name + "' already exists",
                                "INSERT INTO depots (name, time_zone, design_low_c)"
                                " VALUES ($1, $2, $3) RETURNING id",
@@ -127,7 +127,7 @@ StoreResult<Page<Depot>> PgStore::list_depots(const PageRequest& page) {
 }
 
 StoreResult<Depot> PgStore::update_depot(const Depot& d) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     depot_by_id(tx, d.id);
     run_unique(tx, "name", "a depot named '" + d.name + "' already exists",
                "UPDATE depots SET name = $2, time_zone = $3, design_low_c = $4 WHERE id = $1",
@@ -139,7 +139,7 @@ StoreResult<Depot> PgStore::update_depot(const Depot& d) {
 // ---- vehicles -----------------------------------------------------------------
 
 StoreResult<Vehicle> PgStore::create_vehicle(const Vehicle& v) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     require_depot(tx, v.depot_id);
     const auto id = run_unique(
         tx, "code", "a vehicle with code '" + v.code + "' already exists",
@@ -167,7 +167,7 @@ StoreResult<Page<Vehicle>> PgStore::list_vehicles(const VehicleFilter& filter,
 }
 
 StoreResult<Vehicle> PgStore::update_vehicle(const Vehicle& v) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     vehicle_by_id(tx, v.id);
     require_depot(tx, v.depot_id);
     run_unique(tx, "code", "a vehicle with code '" + v.code + "' already exists",
@@ -182,7 +182,7 @@ StoreResult<Vehicle> PgStore::update_vehicle(const Vehicle& v) {
 // ---- batteries ----------------------------------------------------------------
 
 StoreResult<Battery> PgStore::create_battery(const Battery& b, sys_seconds at) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     if (b.vehicle_id) require_vehicle(tx, *b.vehicle_id);
     const auto id = run_unique(
         tx, "serial", "a battery with serial '" + b.serial + "' already exists",
@@ -235,7 +235,7 @@ StoreResult<Page<Battery>> PgStore::list_batteries(const BatteryFilter& f,
 }
 
 StoreResult<Battery> PgStore::update_battery(const Battery& b) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     battery_by_serial(tx, b.serial);
     tx.exec_params(
         "UPDATE batteries SET chemistry = $2, nominal_v = $3, cells = $4, rated_cca_a = $5,"
@@ -249,7 +249,7 @@ StoreResult<Battery> PgStore::update_battery(const Battery& b) {
 }
 
 StoreResult<Battery> PgStore::fit_battery(std::string_view serial, Id vehicle_id, sys_seconds at) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     const Battery b = require_in_service(tx, serial);
     require_vehicle(tx, vehicle_id);
     tx.exec_params("UPDATE batteries SET vehicle_id = $2 WHERE id = $1", b.id, vehicle_id);
@@ -260,7 +260,7 @@ StoreResult<Battery> PgStore::fit_battery(std::string_view serial, Id vehicle_id
 
 StoreResult<Battery> PgStore::retire_battery(std::string_view serial, std::string_view reason,
                                              sys_seconds at) {
-  return write_fleet([&](pqxx::dbtransaction& tx) {
+  return write_fleet([&](pqxx::transaction_base& tx) {
     const Battery b = require_in_service(tx, serial);
     tx.exec_params(
         "UPDATE batteries SET status = 'retired', retired_at = $2, retire_reason = $3,"

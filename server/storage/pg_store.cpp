@@ -11,24 +11,34 @@
 namespace pbfleet::storage {
 namespace pg {
 
+const std::string& begin_write_sql() {
+  static const std::string sql = "BEGIN ISOLATION LEVEL READ COMMITTED; SELECT pg_advisory_xact_lock(" +
+                                 std::to_string(kWriteLockKey) + ")";
+  return sql;
+}
+
 void prepare_statements(pqxx::connection& c) {
-  c.prepare("write_lock", "SELECT pg_advisory_xact_lock(" + std::to_string(kWriteLockKey) + ")");
   c.prepare("battery_ids", "SELECT serial, id FROM batteries WHERE serial = ANY($1::text[])");
   c.prepare("battery_by_serial", std::string(kBatterySelect) + " WHERE b.serial = $1");
   c.prepare("readings_insert_many",
-            "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
+            "WITH ins AS (INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
             " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h,"
             " load_test_a, load_test_end_v, logged_by, source, note, after_charge, water_added,"
             " content_hash) SELECT * FROM unnest($1::text[], $2::bigint[], $3::bigint[],"
             " $4::bigint[], $5::float8[], $6::text[], $7::float8[], $8::text[], $9::float8[],"
             " $10::text[], $11::float8[], $12::float8[], $13::float8[], $14::text[], $15::text[],"
             " $16::text[], $17::bool[], $18::bool[], $19::bytea[])"
-            " ON CONFLICT (reading_id) DO NOTHING RETURNING id, reading_id");
+            " ON CONFLICT (reading_id) DO NOTHING RETURNING id, reading_id),"
+            " counted AS (UPDATE counters SET value = value + (SELECT count(*) FROM ins)"
+            " WHERE name = 'readings') SELECT id, reading_id FROM ins");
+  // The INSERT above moves the readings counter in the same statement (a
+  // data-modifying WITH), and a refused batch's rows leave with it.
   c.prepare("readings_existing",
             "SELECT id, reading_id, content_hash FROM readings WHERE reading_id = ANY($1::text[])");
   c.prepare("readings_by_ids", std::string(kReadingSelect) + " WHERE r.id = ANY($1::bigint[])");
-  c.prepare("readings_delete_ids", "DELETE FROM readings WHERE id = ANY($1::bigint[])");
-  c.prepare("readings_added", "UPDATE counters SET value = value + $1 WHERE name = 'readings'");
+  c.prepare("readings_delete_ids",
+            "WITH gone AS (DELETE FROM readings WHERE id = ANY($1::bigint[]) RETURNING 1)"
+            " UPDATE counters SET value = value - (SELECT count(*) FROM gone) WHERE name = 'readings'");
   // The last $2 readings of each battery in $1, one index range per battery
   // (LATERAL), batteries in the order given, newest first within each.
   const std::string per_battery =
@@ -60,6 +70,16 @@ PgStore::Connection PgStore::open_connection() {
   Connection c = connect(conninfo_, {options_.lock_timeout, options_.connect_timeout});
   prepare_statements(*c);
   return c;
+}
+
+void PgStore::roll_back_writer() noexcept {
+  if (!writer_) return;
+  try {
+    pqxx::nontransaction tx(*writer_);
+    tx.exec("ROLLBACK");
+  } catch (...) {
+    writer_.reset();  // unusable: a fresh one opens on the next write
+  }
 }
 
 pqxx::connection& PgStore::writer() {

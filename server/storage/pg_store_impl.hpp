@@ -11,6 +11,7 @@
 #include <condition_variable>
 #include <memory>
 #include <mutex>
+#include <optional>
 #include <string>
 #include <type_traits>
 #include <unordered_map>
@@ -25,6 +26,9 @@ namespace pbfleet::storage::pg {
 // Advisory lock keys (one 64-bit space per database).
 inline constexpr std::int64_t kWriteLockKey = 0x7062666c74'01;    // every write transaction
 inline constexpr std::int64_t kMigrateLockKey = 0x7062666c74'02;  // schema migration
+// The start of every write transaction: BEGIN and the write lock, one
+// round trip (pg_store.cpp).
+const std::string& begin_write_sql();
 
 class PgStore final : public Store {
  public:
@@ -113,36 +117,40 @@ class PgStore final : public Store {
   void give_back(Connection c);
   pqxx::connection& writer();  // REQUIRES: write_mutex_ held; reconnects a broken writer
 
-  // Runs `body(pqxx::dbtransaction&)` in one READ COMMITTED write
+  // Runs `body(pqxx::transaction_base&)` in one READ COMMITTED write
   // transaction on the writer connection, under the writer mutex, after
-  // taking the cross-instance write lock; commits when it returns.
+  // taking the cross-instance write lock; commits when it returns, rolls
+  // back when it throws. The transaction is spelled out on a
+  // nontransaction so that BEGIN and the lock travel in one round trip
+  // (the single-reading path is bounded by round trips per commit).
   template <class F>
-  auto write(F&& body) -> StoreResult<std::invoke_result_t<F&, pqxx::dbtransaction&>> {
+  auto write(F&& body) -> StoreResult<std::invoke_result_t<F&, pqxx::transaction_base&>> {
+    using Value = std::invoke_result_t<F&, pqxx::transaction_base&>;
     try {
       std::lock_guard lock(write_mutex_);
       pqxx::connection& c = writer();
+      std::optional<Value> value;
       try {
-        pqxx::work tx(c);
-        tx.exec_prepared("write_lock");
-        auto value = body(static_cast<pqxx::dbtransaction&>(tx));
-        tx.commit();
-        return value;
-      } catch (const pqxx::broken_connection&) {
-        writer_.reset();
-        throw;
-      } catch (const pqxx::in_doubt_error&) {
-        writer_.reset();
+        pqxx::nontransaction tx(c);
+        tx.exec(begin_write_sql());
+        value.emplace(body(static_cast<pqxx::transaction_base&>(tx)));
+        tx.exec("COMMIT");
+      } catch (...) {
+        roll_back_writer();
         throw;
       }
+      return std::move(*value);
     } catch (const std::exception& e) {
       return classify(e);
     }
   }
+  // After a failed write: ROLLBACK, or drop a connection that cannot.
+  void roll_back_writer() noexcept;
 
   // write() for depots, vehicles and batteries: afterwards this process's
   // battery cache is looked up again.
   template <class F>
-  auto write_fleet(F&& body) -> StoreResult<std::invoke_result_t<F&, pqxx::dbtransaction&>> {
+  auto write_fleet(F&& body) -> StoreResult<std::invoke_result_t<F&, pqxx::transaction_base&>> {
     auto result = write(std::forward<F>(body));
     fleet_version_.fetch_add(1, std::memory_order_acq_rel);
     return result;

@@ -46,7 +46,7 @@ StoreResult<ApiToken> PgStore::create_token(std::string_view name, Role role,
                                             std::optional<Id> depot_id, const TokenHash& hash,
                                             std::chrono::sys_seconds at,
                                             std::optional<std::chrono::sys_seconds> expires_at) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write([&](pqxx::transaction_base& tx) {
     if (depot_id && tx.exec_params("SELECT 1 FROM depots WHERE id = $1", *depot_id).empty()) {
       fail(StoreErrc::constraint, "no depot with id " + std::to_string(*depot_id), "depot_id");
     }
@@ -82,7 +82,7 @@ StoreResult<Page<ApiToken>> PgStore::list_tokens(const PageRequest& page) {
 }
 
 StoreResult<ApiToken> PgStore::revoke_token(Id id, std::chrono::sys_seconds at) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write([&](pqxx::transaction_base& tx) {
     token_by_id(tx, id);
     tx.exec_params("UPDATE api_tokens SET revoked_at = coalesce(revoked_at, $2) WHERE id = $1", id,
                    to_db(at));
@@ -95,7 +95,7 @@ StoreResult<WebSession> PgStore::create_web_session(const TokenHash& session_has
                                                     std::string_view csrf,
                                                     std::chrono::sys_seconds at,
                                                     std::chrono::sys_seconds expires_at) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write([&](pqxx::transaction_base& tx) {
     if (tx.exec_params("SELECT 1 FROM api_tokens WHERE id = $1", token_id).empty()) {
       fail(StoreErrc::constraint, "no token with id " + std::to_string(token_id), "token_id");
     }
@@ -114,7 +114,7 @@ StoreResult<WebSession> PgStore::find_web_session(const TokenHash& session_hash)
 }
 
 StoreResult<Done> PgStore::end_web_session(const TokenHash& session_hash) {
-  return write([&](pqxx::dbtransaction& tx) {
+  return write([&](pqxx::transaction_base& tx) {
     tx.exec_params("DELETE FROM web_sessions WHERE hash = $1", hash_param(session_hash));
     return Done{};
   });
