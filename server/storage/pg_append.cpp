@@ -2,7 +2,8 @@
 // bulk load, set at a time. The rules are sqlite_readings.cpp's; the way
 // differs because every statement is a round trip to the server:
 //
-//   1. battery ids of every serial in the group, one query;
+//   1. battery ids of every serial in the group: from the store's id cache
+//      (a serial's id never changes), else one query;
 //   2. each row checked in memory (unknown serial, a reading_id repeated
 //      inside its batch, with the same or other content);
 //   3. the new rows of every batch still clean go in ONE
@@ -110,15 +111,6 @@ class Columns {
   ArrayLiteral c_[19];
   std::size_t rows_ = 0;
 };
-
-// Battery ids of the given serials (unknown ones are absent).
-std::unordered_map<std::string, Id> battery_ids(Tx& tx, const std::unordered_set<std::string>& serials) {
-  ArrayLiteral list;
-  for (const auto& s : serials) list.text(s);
-  std::unordered_map<std::string, Id> ids;
-  for (const auto& row : tx.exec_prepared("battery_ids", list.str())) ids.emplace(text(row[0]), row[1].as<Id>());
-  return ids;
-}
 
 RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
   return RowProblem{row, StoreErrc::conflict, "reading_id",
@@ -297,12 +289,41 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
 
 }  // namespace
 
-std::vector<AppendOutcome> append_group(Tx& tx, const std::vector<std::vector<ReadingInput>>& batches,
+std::unordered_map<std::string, Id> BatteryIdCache::ids(Tx& tx, const std::vector<std::string>& serials) {
+  std::unordered_map<std::string, Id> out;
+  std::unordered_set<std::string> unknown;
+  {
+    std::lock_guard lock(mutex_);
+    for (const auto& s : serials) {
+      if (out.count(s) || unknown.count(s)) continue;
+      if (auto it = known_.find(s); it != known_.end()) {
+        out.emplace(s, it->second);
+      } else {
+        unknown.insert(s);
+      }
+    }
+  }
+  if (unknown.empty()) return out;
+  ArrayLiteral missing;
+  for (const auto& s : unknown) missing.text(s);
+  const pqxx::result rows = tx.exec_prepared("battery_ids", missing.str());
+  std::lock_guard lock(mutex_);
+  if (known_.size() >= kMaxEntries) known_.clear();
+  for (const auto& row : rows) {
+    const Id id = row[1].as<Id>();
+    out.emplace(text(row[0]), id);
+    known_.emplace(text(row[0]), id);
+  }
+  return out;
+}
+
+std::vector<AppendOutcome> append_group(Tx& tx, BatteryIdCache& battery_ids,
+                                        const std::vector<std::vector<ReadingInput>>& batches,
                                         sys_seconds now) {
-  std::unordered_set<std::string> serials;
+  std::vector<std::string> serials;
   for (const auto& batch : batches)
-    for (const auto& r : batch) serials.insert(r.serial);
-  const auto ids = battery_ids(tx, serials);
+    for (const auto& r : batch) serials.push_back(r.serial);
+  const auto ids = battery_ids.ids(tx, serials);
   std::vector<BatchWork> work;
   work.reserve(batches.size());
   for (const auto& batch : batches) work.push_back(check_batch(batch, ids));
@@ -320,10 +341,11 @@ std::vector<AppendOutcome> append_group(Tx& tx, const std::vector<std::vector<Re
   return outcomes;
 }
 
-std::size_t load_group(Tx& tx, const std::vector<ReadingInput>& batch, sys_seconds now) {
-  std::unordered_set<std::string> serials;
-  for (const auto& r : batch) serials.insert(r.serial);
-  const auto ids = battery_ids(tx, serials);
+std::size_t load_group(Tx& tx, BatteryIdCache& battery_ids, const std::vector<ReadingInput>& batch,
+                       sys_seconds now) {
+  std::vector<std::string> serials;
+  for (const auto& r : batch) serials.push_back(r.serial);
+  const auto ids = battery_ids.ids(tx, serials);
   for (std::size_t from = 0; from < batch.size(); from += kLoadChunk) {
     Columns columns;
     std::vector<std::string> wanted;

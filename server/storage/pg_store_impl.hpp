@@ -30,6 +30,22 @@ inline constexpr std::int64_t kMigrateLockKey = 0x7062666c74'02;  // schema migr
 // round trip (pg_store.cpp).
 const std::string& begin_write_sql();
 
+// Battery ids by serial, kept for the life of the store: a serial's id never
+// changes and batteries are never deleted, so an entry cannot go stale. It
+// spares each group commit the look-up of batteries it has seen (pg_append.cpp).
+class BatteryIdCache {
+ public:
+  // Ids of `serials`, from memory where known, else one query (unknown
+  // serials are absent from the answer).
+  std::unordered_map<std::string, Id> ids(pqxx::transaction_base& tx,
+                                          const std::vector<std::string>& serials);
+
+ private:
+  static constexpr std::size_t kMaxEntries = 1'000'000;
+  std::mutex mutex_;
+  std::unordered_map<std::string, Id> known_;  // GUARDED_BY(mutex_)
+};
+
 class PgStore final : public Store {
  public:
   // Connects the writer, checks its settings, migrates. Throws PgError.
@@ -204,6 +220,8 @@ class PgStore final : public Store {
   std::mutex battery_cache_mutex_;
   std::unordered_map<std::string, CachedBattery> battery_cache_;  // GUARDED_BY(battery_cache_mutex_)
 
+  BatteryIdCache battery_ids_;
+
   std::mutex pool_mutex_;
   std::condition_variable pool_free_;
   std::vector<Connection> idle_readers_;  // GUARDED_BY(pool_mutex_)
@@ -215,11 +233,11 @@ void prepare_statements(pqxx::connection& c);
 
 // Storing readings set at a time (pg_append.cpp), inside a write transaction.
 // One outcome per batch, as Store::append_reading_batches promises.
-std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx,
+std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx, BatteryIdCache& battery_ids,
                                         const std::vector<std::vector<models::wire::ReadingInput>>& batches,
                                         std::chrono::sys_seconds now);
 // Store::load_readings' body: throws PgError (not_found, conflict).
-std::size_t load_group(pqxx::transaction_base& tx,
+std::size_t load_group(pqxx::transaction_base& tx, BatteryIdCache& battery_ids,
                        const std::vector<models::wire::ReadingInput>& batch, std::chrono::sys_seconds now);
 
 // Shared query helpers (pg_fleet.cpp).
