@@ -18,6 +18,7 @@
 #include "server/api/bootstrap.hpp"
 #include "server/api/config.hpp"
 #include "server/http/server.hpp"
+#include "server/storage/pg_store.hpp"
 #include "server/storage/sqlite_store.hpp"
 #include "server/web/dashboard.hpp"
 
@@ -69,6 +70,32 @@ int print_new_token(storage::Store& store, const TokenCommand& t) {
   return 0;
 }
 
+// The database for logs: the SQLite file, or the PostgreSQL URI without its password.
+std::string database_name(const api::Config& config) {
+  return config.database.empty() ? config.db.string() : storage::redact_conninfo(config.database);
+}
+
+// Opens the configured store. On failure: one line naming the setting.
+storage::StoreResult<std::unique_ptr<storage::Store>> open_store(const api::Config& config) {
+  if (!config.database.empty()) {
+    auto store = storage::open_postgres_store(config.database);
+    if (!store) {
+      return storage::StoreError{store.error().code,
+                                 "database: cannot use " + database_name(config) + ": " + store.error().detail,
+                                 "database"};
+    }
+    return store;
+  }
+  std::error_code ec;
+  std::filesystem::create_directories(config.db.parent_path(), ec);
+  auto store = storage::open_sqlite_store({.file = config.db, .max_size_bytes = config.max_db_bytes});
+  if (!store) {
+    return storage::StoreError{store.error().code,
+                               "db: cannot open database " + config.db.string() + ": " + store.error().detail, "db"};
+  }
+  return store;
+}
+
 int serve(storage::Store& store, const api::Config& config, const std::string& port_file) {
   api::SystemClock clock;
   api::ApiOptions options;
@@ -84,7 +111,7 @@ int serve(storage::Store& store, const api::Config& config, const std::string& p
   std::string error;
   if (!server.listen(config.host, config.port, &error)) return fail(kExitFailure, "cannot listen: " + error);
   spdlog::info("listening on {}:{} (database {}); dashboard at http://{}:{}/", config.host, server.port(),
-               config.db.string(), config.host, server.port());
+               database_name(config), config.host, server.port());
   if (!port_file.empty()) std::ofstream(port_file) << server.port() << '\n';
   server.run();
   spdlog::info("stopped: in-flight requests finished, closing the database");
@@ -95,7 +122,7 @@ int serve(storage::Store& store, const api::Config& config, const std::string& p
 
 int main(int argc, char** argv) {
   spdlog::set_default_logger(spdlog::stderr_color_mt("pbfleetd"));  // stdout is for data
-  CLI::App cli{"pbfleetd: the pbfleet service (HTTP API over an embedded SQLite database)"};
+  CLI::App cli{"pbfleetd: the pbfleet service (HTTP API over an embedded SQLite database, or PostgreSQL)"};
   cli.set_version_flag("--version", "pbfleetd 0.1.0");
   std::string config_file, init_token_file, port_file;
   std::map<std::string, std::string> flag_values;
@@ -134,10 +161,8 @@ int main(int argc, char** argv) {
                                            " (accepted: " + config.error().allowed + ")");
   spdlog::set_level(spdlog::level::from_str(config->log_level));
 
-  std::error_code ec;
-  std::filesystem::create_directories(config->db.parent_path(), ec);
-  auto store = storage::open_sqlite_store({.file = config->db, .max_size_bytes = config->max_db_bytes});
-  if (!store) return fail(kExitFailure, "cannot open database: " + store.error().detail);
+  auto store = open_store(config.value());
+  if (!store) return fail(kExitFailure, store.error().detail);
 
   if (*create) return print_new_token(*store.value(), token);
   if (!init_token_file.empty()) {

@@ -4,7 +4,8 @@
 // up; the store compares hashes in constant time. Known tokens are cached
 // briefly; revoking through the API drops the cache entry at once, so a
 // revoked token gets 401 on the very next request. Repeated bad tokens from
-// one address are answered 429 for a while (guessing is throttled). A
+// one address are answered 429 for a while (guessing is throttled; the
+// count is kept per pbfleetd instance, in memory, not shared). A
 // token past its expires_at is refused like a revoked one, checked against
 // the injected clock on every request (cached or not).
 #pragma once
@@ -55,9 +56,11 @@ struct AuthLimits {
   // Bad tokens one address may present per window before getting 429.
   int failures_per_window = 20;
   std::chrono::seconds window{60};
-  // How long a known token stays cached (bounds the delay of a revocation
-  // made outside this process, e.g. by `pbfleetd token revoke`).
-  std::chrono::seconds cache_ttl{2};
+  // How long a known token stays cached: bounds the delay of a revocation
+  // made outside this process (another pbfleetd on the same PostgreSQL
+  // database, or `pbfleetd token revoke`). Under 1 s, so a token revoked
+  // through one instance is refused by every instance within a second.
+  std::chrono::milliseconds cache_ttl{500};
 };
 
 // Why a token was refused: the problem kind (unauthorized, too_many_requests,

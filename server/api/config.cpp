@@ -62,7 +62,27 @@ models::Result<bool> apply_limits(const Settings& s, http::ServerOptions& o) {
   return true;
 }
 
+bool given(const Settings& s, const std::string& key) {
+  auto it = s.find(key);
+  return it != s.end() && !it->second.empty();
+}
+
+// `database` names a PostgreSQL database; data and db name SQLite files.
+models::Result<bool> apply_database(const Settings& s, Config& c) {
+  const std::string& uri = s.at("database");
+  if (uri.rfind("postgresql://", 0) != 0 && uri.rfind("postgres://", 0) != 0)
+    return models::Error{"database", "is not a PostgreSQL URI",
+                         "postgresql://USER@HOST:PORT/DBNAME (SQLite: --data DIR or --db FILE)"};
+  if (given(s, "data") || given(s, "db"))
+    return models::Error{"database", "cannot be combined with data or db",
+                         "either database (PostgreSQL) or data/db (SQLite)"};
+  c.database = uri;
+  if (given(s, "backup_dir")) c.backup_dir = s.at("backup_dir");
+  return true;
+}
+
 models::Result<bool> apply_paths(const Settings& s, Config& c) {
+  if (given(s, "database")) return apply_database(s, c);
   auto data = s.find("data");
   auto db = s.find("db");
   if (db != s.end() && !db->second.empty()) {
@@ -70,7 +90,8 @@ models::Result<bool> apply_paths(const Settings& s, Config& c) {
   } else if (data != s.end() && !data->second.empty()) {
     c.db = std::filesystem::path(data->second) / "pbfleet.db";
   } else {
-    return models::Error{"data", "no database given", "--data DIR or --db FILE"};
+    return models::Error{"data", "no database given",
+                         "--data DIR or --db FILE (SQLite), or --database postgresql://..."};
   }
   auto backup = s.find("backup_dir");
   if (backup != s.end() && !backup->second.empty()) {
@@ -85,7 +106,7 @@ models::Result<bool> apply_paths(const Settings& s, Config& c) {
 
 const std::vector<std::string>& config_keys() {
   static const std::vector<std::string> kKeys{
-      "listen",           "data",           "db",
+      "listen",           "data",           "db",             "database",
       "log_level",        "backup_dir",     "body_limit_bytes",
       "header_limit_bytes", "header_timeout_ms", "body_timeout_ms",
       "write_timeout_ms", "max_connections", "io_threads",

@@ -5,6 +5,10 @@
 //   listen              HOST:PORT, default 127.0.0.1:8470 (loopback)
 //   data                data folder; the database is DATA/pbfleet.db
 //   db                  database file (overrides data)
+//   database            a PostgreSQL database instead of SQLite:
+//                       postgresql://USER@HOST:PORT/DBNAME (libpq's PG*
+//                       variables and ~/.pgpass apply; a password in the URI
+//                       is never logged). Not together with data or db.
 //   log_level           trace, debug, info, warn, error (default info)
 //   backup_dir          folder for POST /v1/admin/backup (default DATA/backups
 //                       or beside the database)
@@ -39,8 +43,9 @@ namespace pbfleet::api {
 struct Config {
   std::string host = "127.0.0.1";
   std::uint16_t port = 8470;
-  std::filesystem::path db;          // resolved database file
-  std::filesystem::path backup_dir;  // resolved backup folder
+  std::filesystem::path db;          // resolved SQLite database file (empty with `database`)
+  std::string database;              // PostgreSQL URI; empty = SQLite at `db`
+  std::filesystem::path backup_dir;  // resolved backup folder (SQLite; empty with `database`)
   std::string log_level = "info";
   std::uint64_t max_db_bytes = 0;    // 0 = no cap (see storage SqliteOptions)
   http::ServerOptions server;        // limits and threads

@@ -1,5 +1,8 @@
 # Writes a C++ source holding every migration's number, name and SQL text.
-# Called by a build rule with -DOUT=<file.cpp> -DFILES=<a;b;c>.
+# Called by a build rule with -DOUT=<file.cpp> -DFILES=<a;b;c> -DFUNCTION=<name>.
+if(NOT FUNCTION)
+  set(FUNCTION embedded_migrations)
+endif()
 set(body "")
 foreach(file IN LISTS FILES)
   get_filename_component(name ${file} NAME)
@@ -19,7 +22,7 @@ file(WRITE ${OUT}.tmp
 
 namespace pbfleet::storage {
 
-const std::vector<Migration>& embedded_migrations() {
+const std::vector<Migration>& ${FUNCTION}() {
   static const std::vector<Migration> migrations = {
 ${body}  };
   return migrations;

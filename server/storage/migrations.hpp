@@ -16,7 +16,10 @@ struct Migration {
   std::string_view sql;
 };
 
-// Every migration this binary knows, in version order (generated source).
+// Every migration this binary knows, in version order (generated source):
+// schema/NNNN_*.sql for SQLite, schema/postgresql/NNNN_*.sql for PostgreSQL
+// (the same numbers and meaning).
 const std::vector<Migration>& embedded_migrations();
+const std::vector<Migration>& embedded_pg_migrations();
 
 }  // namespace pbfleet::storage

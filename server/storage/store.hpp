@@ -142,8 +142,11 @@ using MeasurementVisitor =
 // ---- operations -------------------------------------------------------------
 
 struct DurabilitySettings {
+  std::string backend = "sqlite";  // "sqlite" or "postgresql"
   std::string journal_mode;  // "wal"
-  int synchronous = 0;       // 2 = FULL
+  int synchronous = 0;       // 2 = FULL (SQLite); 2 = every commit flushed (PostgreSQL)
+  std::string synchronous_commit;  // PostgreSQL's setting in force ("on"); empty on SQLite
+  std::optional<bool> fsync;       // PostgreSQL server's fsync; nullopt on SQLite
   bool foreign_keys = false;
   int busy_timeout_ms = 0;
   int schema_version = 0;

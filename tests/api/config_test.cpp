@@ -79,4 +79,23 @@ TEST_CASE("environment variables are PBFLEET_ and the key in capitals") {
   CHECK(s.at("log_level") == "warn");
 }
 
+TEST_CASE("database names a PostgreSQL database instead of a SQLite file") {
+  auto c = make_config({{"database", "postgresql://fleet@db.example:5432/fleet"}});
+  REQUIRE(c.ok());
+  CHECK(c->database == "postgresql://fleet@db.example:5432/fleet");
+  CHECK(c->db.empty());
+  CHECK(c->backup_dir.empty());  // backups of PostgreSQL go through deploy/backup
+  CHECK(make_config({{"database", "postgres://fleet@db/fleet"}}).ok());
+}
+
+TEST_CASE("database must be a PostgreSQL URI and is not combined with data or db") {
+  auto not_uri = make_config({{"database", "/srv/pbfleet.db"}});
+  REQUIRE_FALSE(not_uri.ok());
+  CHECK(not_uri.error().field == "database");
+  CHECK(not_uri.error().allowed.find("postgresql://") != std::string::npos);
+  auto both = make_config({{"database", "postgresql://fleet@db/fleet"}, {"data", "/tmp/x"}});
+  REQUIRE_FALSE(both.ok());
+  CHECK(both.error().field == "database");
+}
+
 }  // namespace pbfleet::api

@@ -10,6 +10,7 @@
 #include <iterator>
 #include <chrono>
 #include <fstream>
+#include <vector>
 #include <stdexcept>
 #include <thread>
 
@@ -48,16 +49,28 @@ bool exited(pid_t pid) { return ::waitpid(pid, nullptr, WNOHANG) == pid; }
 
 Daemon::Daemon(const std::filesystem::path& exe, const std::filesystem::path& db,
                const std::filesystem::path& log)
-{
+    : Daemon(exe, log, {"--db", db.string()}) {}
+
+Daemon::Daemon(const std::filesystem::path& exe, const std::string& database_uri,
+               const std::filesystem::path& log)
+    : Daemon(exe, log, {"--database", database_uri}) {}
+
+Daemon::Daemon(const std::filesystem::path& exe, const std::filesystem::path& log,
+               std::vector<std::string> database_args) {
   const std::filesystem::path port_file = log.string() + ".port";
   std::filesystem::remove(port_file);
+  std::vector<std::string> args{exe.string(), "--listen", "127.0.0.1:0", "--port-file",
+                                port_file.string(), "--log-level", "warn"};
+  args.insert(args.end(), database_args.begin(), database_args.end());
+  std::vector<char*> argv;
+  for (auto& a : args) argv.push_back(a.data());
+  argv.push_back(nullptr);
   pid_ = ::fork();
   if (pid_ < 0) throw std::runtime_error("fork failed");
   if (pid_ == 0) {
     const int fd = ::open(log.c_str(), O_WRONLY | O_CREAT | O_APPEND, 0600);
     if (fd >= 0) { ::dup2(fd, 1); ::dup2(fd, 2); }
-    ::execl(exe.c_str(), exe.c_str(), "--listen", "127.0.0.1:0", "--port-file", port_file.c_str(),
-            "--db", db.c_str(), "--log-level", "warn", static_cast<char*>(nullptr));
+    ::execv(exe.c_str(), argv.data());
     ::_exit(127);
   }
   g_running = pid_;

@@ -18,6 +18,9 @@ class Daemon {
   // Its output goes to `log`.
   Daemon(const std::filesystem::path& exe, const std::filesystem::path& db,
          const std::filesystem::path& log);
+  // The same on a PostgreSQL database (--database URI).
+  Daemon(const std::filesystem::path& exe, const std::string& database_uri,
+         const std::filesystem::path& log);
   ~Daemon();
   Daemon(const Daemon&) = delete;
   Daemon& operator=(const Daemon&) = delete;
@@ -30,6 +33,8 @@ class Daemon {
   void stop();
 
  private:
+  Daemon(const std::filesystem::path& exe, const std::filesystem::path& log,
+         std::vector<std::string> database_args);
   pid_t pid_ = -1;
   std::uint16_t port_ = 0;
 };

@@ -132,14 +132,7 @@ FleetDb fleet_db(const fs::path& cache_dir, int batteries, int weeks) {
                out.file.c_str());
   {
     auto store = open_store(out.file);
-    const auto config = config_for(batteries, weeks);
-    const auto fleet = demogen::make_fleet(config);
-    load_structure(*store, fleet);
-    InterleavedLoader loader(*store);
-    demogen::generate_readings(config, fleet,
-                               [&](const demogen::BatterySpecOut&,
-                                   const std::vector<ReadingInput>& r) { loader.add(r); });
-    const std::size_t n = loader.finish();
+    const std::size_t n = load_generated_fleet(*store, batteries, weeks);
     std::fprintf(stderr, "stored %zu readings\n", n);
   }  // closing checkpoints the WAL into the file
   std::FILE* marker = std::fopen(done_marker(out.file).c_str(), "w");
@@ -147,6 +140,17 @@ FleetDb fleet_db(const fs::path& cache_dir, int batteries, int weeks) {
   out.build_seconds = seconds_since(start);
   std::fprintf(stderr, "built in %.1f s\n", out.build_seconds);
   return out;
+}
+
+std::size_t load_generated_fleet(storage::Store& store, int batteries, int weeks) {
+  const auto config = config_for(batteries, weeks);
+  const auto fleet = demogen::make_fleet(config);
+  load_structure(store, fleet);
+  InterleavedLoader loader(store);
+  demogen::generate_readings(config, fleet,
+                             [&](const demogen::BatterySpecOut&,
+                                 const std::vector<ReadingInput>& r) { loader.add(r); });
+  return loader.finish();
 }
 
 std::string admin_token(storage::Store& store) {

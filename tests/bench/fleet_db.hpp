@@ -41,6 +41,10 @@ FleetDb fleet_db(const std::filesystem::path& cache_dir, int batteries, int week
 // empty database.
 void load_structure(storage::Store& store, const demogen::Fleet& fleet);
 
+// Generates the fleet of `batteries` x `weeks` into an empty store (any
+// backend), in the same order as fleet_db; returns the readings stored.
+std::size_t load_generated_fleet(storage::Store& store, int batteries, int weeks);
+
 // Opens a store on an existing database (exits on error).
 std::unique_ptr<storage::Store> open_store(const std::filesystem::path& file);
 

@@ -62,7 +62,7 @@ void seed_readings(LiveFleet& fleet) {
 }  // namespace
 
 TEST_CASE("the winter page shows the report's counts, order and numbers, at the depot's low and at another") {
-  LiveFleet fleet({.batteries_per_depot = 3, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 3, .extra_args = {}, .log_level = "warn", .database = {}});
   seed_readings(fleet);
   WebSession web(fleet.server().port());
   REQUIRE(web.sign_in(fleet.token("manager")).status == 303);
@@ -107,7 +107,7 @@ TEST_CASE("the winter page shows the report's counts, order and numbers, at the 
 }
 
 TEST_CASE("the battery page draws one point per reading, marks the flagged ones and names their flags") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   seed_readings(fleet);
   const std::string serial = fleet.serials("North Yard")[0];
   const auto history = fleet.client("technician").get("/v1/batteries/" + serial + "/history").json();
@@ -134,7 +134,7 @@ TEST_CASE("the battery page draws one point per reading, marks the flagged ones 
 }
 
 TEST_CASE("a refused reading shows each field's error beside it and stores nothing, a good one lands in the history") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   const std::string serial = fleet.serials("North Yard")[0];
   WebSession web(fleet.server().port());
   REQUIRE(web.sign_in(fleet.token("crew")).status == 303);
@@ -184,7 +184,7 @@ TEST_CASE("a refused reading shows each field's error beside it and stores nothi
 }
 
 TEST_CASE("assets are embedded with their content types, ETags and caching") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   HttpClient client(fleet.server().port());
   const auto css = client.get("/assets/dashboard.css");
   CHECK(css.status == 200);

@@ -23,7 +23,7 @@ constexpr int kBackups = 3;
 }  // namespace
 
 TEST_CASE("an online backup taken under write load is consistent and can be served") {
-  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn", .database = {}});
   std::atomic<bool> stop{false};
   std::atomic<int> acknowledged_batches{0};
   std::atomic<int> failures{0};
@@ -84,7 +84,7 @@ TEST_CASE("an online backup taken under write load is consistent and can be serv
   TempDir restore_dir("pbfleet-restore");
   std::filesystem::copy_file(copies.back(), restore_dir / "pbfleet.db");
   ServerProcess restored({.db = restore_dir / "pbfleet.db", .log = restore_dir / "pbfleetd.log",
-                          .admin_token = {}, .extra_args = {}, .log_level = "warn"});
+                          .admin_token = {}, .extra_args = {}, .log_level = "warn", .database = {}});
   HttpClient client(restored.port());
   client.set_token(fleet.token("manager"));
   auto listed = client.get("/v1/readings?limit=1000");

@@ -96,7 +96,7 @@ double percentile(std::vector<double> values, double p) {
 }  // namespace
 
 TEST_CASE("32 concurrent clients logging and reading for 15 s get no 5xx and lose no reading") {
-  LiveFleet fleet({.batteries_per_depot = 6, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 6, .extra_args = {}, .log_level = "warn", .database = {}});
   Tally tally;
   const auto until = Steady::now() + kDuration;
   std::vector<std::thread> threads;

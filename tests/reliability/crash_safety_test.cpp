@@ -96,7 +96,7 @@ TEST_CASE("readings acknowledged before a SIGKILL survive it exactly once, batch
   const unsigned seed = seed_from_environment();
   MESSAGE("seed " << seed << " (set PBFLEET_TEST_SEED to replay)");
   std::mt19937 rng(seed);
-  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn", .database = {}});
   std::vector<std::string> serials = fleet.serials("North Yard");
   for (const auto& s : fleet.serials("Harbour")) serials.push_back(s);
 

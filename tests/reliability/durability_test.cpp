@@ -15,7 +15,7 @@ namespace pbfleet::testing {
 using nlohmann::json;
 
 TEST_CASE("the daemon runs WAL with synchronous FULL and foreign keys, and says so") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto admin = fleet.client("admin");
   auto reply = admin.get("/v1/admin/durability");
   REQUIRE_MESSAGE(reply.status == 200, reply.body);
@@ -29,7 +29,7 @@ TEST_CASE("the daemon runs WAL with synchronous FULL and foreign keys, and says 
 }
 
 TEST_CASE("SIGTERM under write load exits 0 within 10 s and keeps every acknowledged reading") {
-  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn", .database = {}});
   std::mutex mutex;
   std::set<std::string> acknowledged;
   std::atomic<int> server_errors{0};

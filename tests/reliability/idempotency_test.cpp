@@ -41,7 +41,7 @@ std::int64_t readings_in(const LiveFleet& fleet) {
 }  // namespace
 
 TEST_CASE("a batch sent five times, once after a restart, is stored once and replays answer alike") {
-  LiveFleet fleet({.batteries_per_depot = 3, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 3, .extra_args = {}, .log_level = "warn", .database = {}});
   const json batch = batch_of("idem-", fleet.serials("Harbour"), 10);
   auto crew = fleet.client("crew");
 
@@ -68,7 +68,7 @@ TEST_CASE("a batch sent five times, once after a restart, is stored once and rep
 }
 
 TEST_CASE("the same reading_id with a different body is a 409 conflict and stores nothing") {
-  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   const auto serial = fleet.serials("North Yard").front();
   REQUIRE(crew.post("/v1/readings", good_reading(serial, "conflict-1", 0)).status == 201);
@@ -90,7 +90,7 @@ TEST_CASE("the same reading_id with a different body is a 409 conflict and store
 }
 
 TEST_CASE("one reading_id twice in one batch with different bodies stores nothing") {
-  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   const auto serial = fleet.serials("North Yard").front();
   json twice = json::array({good_reading(serial, "dup-1", 0), good_reading(serial, "dup-1", 5)});
@@ -101,7 +101,7 @@ TEST_CASE("one reading_id twice in one batch with different bodies stores nothin
 }
 
 TEST_CASE("the same batch sent on two connections at once is stored once") {
-  LiveFleet fleet({.batteries_per_depot = 3, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 3, .extra_args = {}, .log_level = "warn", .database = {}});
   for (int round = 0; round < 10; ++round) {
     const json batch = batch_of("race" + std::to_string(round) + "-", fleet.serials("Harbour"), 20);
     auto send = [&] { return fleet.client("crew").post("/v1/readings", batch); };

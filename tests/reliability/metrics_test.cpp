@@ -145,7 +145,7 @@ std::vector<Sample> scrape(HttpClient& client) {
 }  // namespace
 
 TEST_CASE("metrics counters rise by exactly the requests sent and the exposition is well formed") {
-  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn", .database = {}});
   auto anon = fleet.client("");
   auto manager = fleet.client("manager");
   auto crew = fleet.client("crew");

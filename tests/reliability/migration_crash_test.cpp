@@ -110,7 +110,7 @@ TEST_CASE("a migration killed at random moments leaves a whole version, and a re
   const auto v1 = dir / "v1.db";
   {
     // A current database with a fleet and tokens, then migrations 0002 and 0003 undone.
-    LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
+    LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn", .database = {}});
     REQUIRE(fleet.client("crew").post("/v1/readings", good_reading(fleet.serials("North Yard")[0], "m-1", 1)).status == 201);
     REQUIRE(fleet.server().terminate() == 0);
     {

@@ -22,7 +22,7 @@ constexpr int kSeedBatch = 1000;
 }  // namespace
 
 TEST_CASE("cursor paging sees every pre-existing reading exactly once while another client inserts") {
-  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn", .database = {}});
   const auto& serials = fleet.serials("North Yard");
   auto crew = fleet.client("crew");
   for (int b = 0; b < kExisting / kSeedBatch; ++b) {
@@ -90,7 +90,7 @@ TEST_CASE("cursor paging sees every pre-existing reading exactly once while anot
 }
 
 TEST_CASE("a page limit above 1000 is refused with 400 naming limit, 1000 is served") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto admin = fleet.client("admin");
   for (const std::string target : {"/v1/readings", "/v1/batteries", "/v1/tokens", "/v1/depots"}) {
     CAPTURE(target);

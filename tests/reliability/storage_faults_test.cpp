@@ -58,7 +58,7 @@ TEST_CASE("a full database answers 507 storing nothing, keeps serving reads, and
   // 1 MiB: the seeded fleet takes a few hundred KiB; filler batches of 100
   // readings (~50 KiB each) reach the cap within about 20 batches.
   LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {"--max-db-bytes", "1048576"},
-                   .log_level = "warn"});
+                   .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   const auto& serials = fleet.serials("North Yard");
   int filled = 0;
@@ -106,7 +106,7 @@ TEST_CASE("a full database answers 507 storing nothing, keeps serving reads, and
 }
 
 TEST_CASE("readyz answers 503 within 5 s when the database file becomes unusable, healthz stays 200, and both recover") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto probe = fleet.client("");
   REQUIRE(probe.get("/readyz").status == 200);
   const auto file = fleet.db();

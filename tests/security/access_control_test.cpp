@@ -94,7 +94,7 @@ class Requests {
 }  // namespace
 
 TEST_CASE("every route answers every identity as the documented role matrix says") {
-  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 4, .extra_args = {}, .log_level = "warn", .database = {}});
   auto [revoked_id, revoked] = fleet.make_token("admin");
   REQUIRE(fleet.client("admin").send("DELETE", "/v1/tokens/" + std::to_string(revoked_id)).status == 200);
   const std::string bad = random_hex(32);

@@ -148,7 +148,7 @@ std::int64_t stored(const LiveFleet& fleet) {
 }  // namespace
 
 TEST_CASE("bad readings are refused with a problem naming the field, and nothing is stored") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   const auto all = cases();
   CHECK(all.size() >= 40);
@@ -166,7 +166,7 @@ TEST_CASE("bad readings are refused with a problem naming the field, and nothing
 }
 
 TEST_CASE("SQL meta characters and Unicode in text fields are stored verbatim and harm nothing") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto admin = fleet.client("admin");
   const std::string sql = "Robert'); DROP TABLE readings;-- \" OR 1=1 -- %_ \\";
   const std::string unicode = "Nordøya – Ridge Pass ❄ 北港 Ærøskøbing";
@@ -212,7 +212,7 @@ TEST_CASE("SQL meta characters and Unicode in text fields are stored verbatim an
 }
 
 TEST_CASE("path traversal in a battery serial is refused on registration and harmless in a path") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto admin = fleet.client("admin");
   for (const std::string serial : {"../../etc/passwd", "..", "a/b", "a\\b", " NY-0009", "NY-\x7f"}) {
     CAPTURE(serial);

@@ -8,7 +8,7 @@
 namespace pbfleet::testing {
 
 TEST_CASE("a request whose Accept excludes JSON and the route's other types gets 406 and changes nothing") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   auto refused = crew.send("POST", "/v1/readings",
                            good_reading(fleet.serials("North Yard")[0], "neg-1", 1).dump(),

@@ -34,7 +34,7 @@ bool names(const HttpReply& reply, const std::string& field, int row_number) {
 }  // namespace
 
 TEST_CASE("CSV with a BOM and CRLF line ends is accepted") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   const std::string doc = "\xEF\xBB\xBF" + std::string(kHeader) + "\r\n" + row("csv-1") + "\r\n" +
                           row("csv-2") + "\r\n";
@@ -48,7 +48,7 @@ TEST_CASE("CSV with a BOM and CRLF line ends is accepted") {
 }
 
 TEST_CASE("broken CSV is refused naming the column and row, and nothing is stored") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   const std::string h = std::string(kHeader) + "\n";
   struct Case {

@@ -37,7 +37,7 @@ int stored(LiveFleet& fleet, const std::string& reading_id) {
 }  // namespace
 
 TEST_CASE("signing in sets an HttpOnly SameSite=Strict session cookie and the token appears in no answer") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   const auto reply = web.sign_in(fleet.token("manager"));
   REQUIRE(reply.status == 303);
@@ -60,7 +60,7 @@ TEST_CASE("signing in sets an HttpOnly SameSite=Strict session cookie and the to
 }
 
 TEST_CASE("the Secure flag is set when pbfleetd is told a TLS proxy fronts it") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {"--secure-cookies", "true"}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {"--secure-cookies", "true"}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   const auto form = web.get("/ui/sign-in");
   for (const auto& c : set_cookies(form)) CHECK(c.attributes.count("secure") == 1);
@@ -70,7 +70,7 @@ TEST_CASE("the Secure flag is set when pbfleetd is told a TLS proxy fronts it") 
 }
 
 TEST_CASE("a session id planted before sign-in is never accepted nor kept (no fixation)") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   const std::string planted(64, 'a');
   web.cookies()["pbfleet_session"] = planted;
@@ -87,7 +87,7 @@ TEST_CASE("a session id planted before sign-in is never accepted nor kept (no fi
 }
 
 TEST_CASE("a form without the session's CSRF code, with a wrong one, or from another origin stores nothing") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   const std::string serial = fleet.serials("North Yard")[0];
   WebSession web(port_of(fleet));
   REQUIRE(web.sign_in(fleet.token("crew")).status == 303);
@@ -117,7 +117,7 @@ TEST_CASE("a form without the session's CSRF code, with a wrong one, or from ano
 }
 
 TEST_CASE("the sign-in form needs its own nonce cookie (login CSRF) and refuses bad tokens") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   const auto forged = web.post_form("/ui/sign-in", {{"token", fleet.token("manager")}, {"nonce", std::string(64, 'b')}});
   CHECK(forged.status == 403);
@@ -129,7 +129,7 @@ TEST_CASE("the sign-in form needs its own nonce cookie (login CSRF) and refuses 
 }
 
 TEST_CASE("sign-out ends the session on the server, and revoking the token ends its sessions") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   REQUIRE(web.sign_in(fleet.token("manager")).status == 303);
   const std::string kept = web.cookies().at("pbfleet_session");
@@ -152,7 +152,7 @@ TEST_CASE("sign-out ends the session on the server, and revoking the token ends 
 }
 
 TEST_CASE("dashboard roles and depot scope are the API's") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession crew(port_of(fleet));
   REQUIRE(crew.sign_in(fleet.token("crew")).status == 303);
   CHECK(crew.get("/ui/winter").status == 403);  // GET /v1/reports/winter is the planners'
@@ -180,7 +180,7 @@ TEST_CASE("dashboard roles and depot scope are the API's") {
 }
 
 TEST_CASE("every dashboard answer carries a strict CSP and the other security headers, and pages hold no inline script or style") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   std::vector<HttpReply> replies{web.get("/"), web.get("/ui/sign-in"), web.get("/ui/no-such-page"),
                                  web.get("/assets/dashboard.css")};
@@ -212,7 +212,7 @@ TEST_CASE("every dashboard answer carries a strict CSP and the other security he
 }
 
 TEST_CASE("bad tokens at the sign-in page are throttled per address like Bearer tokens") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   WebSession web(port_of(fleet));
   int refused = 0, throttled = 0;
   for (int i = 0; i < 25; ++i) {

@@ -25,7 +25,7 @@ std::string masked(const HttpReply& r, const std::string& serial) {
 }  // namespace
 
 TEST_CASE("a revoked token gets 401 on the very next request, even on an open connection") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto [id, raw] = fleet.make_token("manager");
   HttpClient user = fleet.client("");
   user.set_token(raw);
@@ -45,7 +45,7 @@ TEST_CASE("a revoked token gets 401 on the very next request, even on an open co
 }
 
 TEST_CASE("raw tokens appear nowhere in the log, the database or the token list") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "trace"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "trace", .database = {}});
   auto [id, doomed] = fleet.make_token("crew");
   fleet.client("admin").send("DELETE", "/v1/tokens/" + std::to_string(id));
   std::map<std::string, std::string> all = fleet.tokens();
@@ -73,7 +73,7 @@ TEST_CASE("raw tokens appear nowhere in the log, the database or the token list"
 }
 
 TEST_CASE("a thousand bad tokens from one address within a minute get 429 after the first 20 while valid clients carry on") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   std::atomic<bool> guessing{true};
   std::atomic<int> valid_ok{0}, valid_other{0};
   std::thread valid([&] {  // a valid client on another address throughout
@@ -119,7 +119,7 @@ TEST_CASE("a thousand bad tokens from one address within a minute get 429 after 
 }
 
 TEST_CASE("a depot-scoped token sees other depots' objects exactly as missing ones") {
-  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew_north");
   auto tech = fleet.client("technician_north");
   const std::string theirs = "HB-0001", missing = "ZZ-0404";

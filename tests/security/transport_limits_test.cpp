@@ -14,7 +14,7 @@ namespace pbfleet::testing {
 using nlohmann::json;
 
 TEST_CASE("a 10 MB body gets 413 problem+json and nothing is stored") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   json r = good_reading("NY-0001", "big-1", 0);
   r["note"] = std::string(10 * 1024 * 1024, 'a');
@@ -27,7 +27,7 @@ TEST_CASE("a 10 MB body gets 413 problem+json and nothing is stored") {
 }
 
 TEST_CASE("a header flood gets 431 problem+json") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto crew = fleet.client("crew");
   Headers flood;
   for (int i = 0; i < 200; ++i) flood.emplace_back("X-Flood-" + std::to_string(i), std::string(100, 'h'));
@@ -39,7 +39,7 @@ TEST_CASE("a header flood gets 431 problem+json") {
 TEST_CASE("a client trickling its header is cut off by the header timeout while others are served") {
   // 1 s header timeout so the test stays short; the default is 10 s.
   LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {"--header-timeout-ms", "1000"},
-                   .log_level = "warn"});
+                   .log_level = "warn", .database = {}});
   std::vector<std::unique_ptr<RawConnection>> slow;
   for (int i = 0; i < 20; ++i) {
     slow.push_back(std::make_unique<RawConnection>(fleet.server().port()));
@@ -64,7 +64,7 @@ TEST_CASE("a client trickling its header is cut off by the header timeout while 
 
 TEST_CASE("connections beyond the cap are refused and the service recovers") {
   LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {"--max-connections", "8"},
-                   .log_level = "warn"});
+                   .log_level = "warn", .database = {}});
   // 14 connections at once: at most 8 are served, the rest answered 503 at
   // accept. (Connections of the fleet set-up may still count for a moment,
   // so the served number can be below 8, never above.)

@@ -1,6 +1,13 @@
 // Shared fixtures for the storage tests: a temporary folder removed at the
-// end, a freshly opened store in it, and a small fictional fleet
-// (Fjellvik Transport, North Yard depot).
+// end, a freshly opened store, and a small fictional fleet (Fjellvik
+// Transport, North Yard depot).
+//
+// Backends: STORE_TEST_CASE registers a case once per store (doctest
+// TEST_CASE_TEMPLATE over SqliteBackend and PostgresBackend; the names end
+// in <sqlite> and <postgres>). Fleet<Backend> opens a fresh SQLite file or a
+// fresh database in this process's throwaway PostgreSQL cluster
+// (tests/support/pg_cluster.hpp). Cases about SQLite files and pragmas stay
+// plain TEST_CASEs on Fleet<> (SQLite).
 #pragma once
 
 #include <chrono>
@@ -11,8 +18,10 @@
 
 #include <doctest/doctest.h>
 
+#include "server/storage/pg_store.hpp"
 #include "server/storage/sqlite_store.hpp"
 #include "server/storage/store.hpp"
+#include "tests/support/pg_cluster.hpp"
 
 namespace pbfleet::storage::testing {
 
@@ -54,11 +63,45 @@ inline std::unique_ptr<Store> open_store(const std::filesystem::path& file,
   return std::move(store).value();
 }
 
+// A 12 V flooded battery with plausible ratings.
+inline Battery make_battery(std::string serial, std::optional<Id> vehicle_id = std::nullopt) {
+  Battery b;
+  b.serial = std::move(serial);
+  b.chemistry = models::Chemistry::flooded;
+  b.nominal_v = models::Volts{12};
+  b.cells = 6;
+  b.rated_cca_a = models::Amperes{800};
+  b.reserve_capacity_min = 160;
+  b.full_charge_sg = models::SpecificGravity{1.265};
+  b.installed_on = std::chrono::sys_days{std::chrono::year{2023} / 10 / 2};
+  b.vehicle_id = vehicle_id;
+  return b;
+}
+
+struct SqliteBackend {
+  static constexpr bool kPostgres = false;
+  static std::unique_ptr<Store> open(const TempDir& dir) { return open_store(dir.file("fleet.db")); }
+};
+
+struct PostgresBackend {
+  static constexpr bool kPostgres = true;
+  // A fresh database in this process's cluster.
+  static std::unique_ptr<Store> open(const TempDir&) {
+    return open_uri(pbfleet::testing::shared_pg_cluster().fresh_database());
+  }
+  static std::unique_ptr<Store> open_uri(const std::string& uri) {
+    auto store = open_postgres_store(uri);
+    REQUIRE_MESSAGE(store.ok(), (store.ok() ? "" : store.error().detail));
+    return std::move(store).value();
+  }
+};
+
 // A temporary database with one depot, one vehicle and one battery
 // (serial "NY-0001", fitted).
+template <class Backend = SqliteBackend>
 struct Fleet {
   TempDir dir;
-  std::unique_ptr<Store> store = open_store(dir.file("fleet.db"));
+  std::unique_ptr<Store> store = Backend::open(dir);
   Depot depot;
   Vehicle vehicle;
   Battery battery;
@@ -71,17 +114,7 @@ struct Fleet {
   }
 
   static Battery make_battery(std::string serial, std::optional<Id> vehicle_id = std::nullopt) {
-    Battery b;
-    b.serial = std::move(serial);
-    b.chemistry = models::Chemistry::flooded;
-    b.nominal_v = models::Volts{12};
-    b.cells = 6;
-    b.rated_cca_a = models::Amperes{800};
-    b.reserve_capacity_min = 160;
-    b.full_charge_sg = models::SpecificGravity{1.265};
-    b.installed_on = std::chrono::sys_days{std::chrono::year{2023} / 10 / 2};
-    b.vehicle_id = vehicle_id;
-    return b;
+    return testing::make_battery(std::move(serial), vehicle_id);
   }
 };
 
@@ -103,3 +136,11 @@ inline models::wire::ReadingInput reading(std::string id, std::string serial, in
 }
 
 }  // namespace pbfleet::storage::testing
+
+TYPE_TO_STRING_AS("sqlite", pbfleet::storage::testing::SqliteBackend);
+TYPE_TO_STRING_AS("postgres", pbfleet::storage::testing::PostgresBackend);
+
+// A storage case run once per backend; the body names the backend `Backend`.
+#define STORE_TEST_CASE(name)                                                   \
+  TEST_CASE_TEMPLATE(name, Backend, pbfleet::storage::testing::SqliteBackend, \
+                     pbfleet::storage::testing::PostgresBackend)

@@ -89,7 +89,7 @@ TEST_CASE("a full database refuses the batch whole, keeps serving reads and acce
   // A cap just above the empty schema: a few hundred readings fit, not thousands.
   auto store = testing::open_store(dir.file("small.db"), 160 * 1024);
   REQUIRE(store->create_depot({0, "Ridge Pass", "Europe/Oslo", models::Celsius{-30}}).ok());
-  REQUIRE(store->create_battery(Fleet::make_battery("RP-0001"), at(0)).ok());
+  REQUIRE(store->create_battery(testing::make_battery("RP-0001"), at(0)).ok());
 
   std::vector<models::wire::ReadingInput> huge;
   for (int i = 0; i < 5000; ++i) {
@@ -108,8 +108,8 @@ TEST_CASE("a full database refuses the batch whole, keeps serving reads and acce
   CHECK(store->readings_count().value() == 1);
 }
 
-TEST_CASE("readers and a writer work concurrently without busy errors") {
-  Fleet f;
+STORE_TEST_CASE("readers and a writer work concurrently without busy errors") {
+  Fleet<Backend> f;
   std::atomic<int> failures{0};
   std::vector<std::thread> threads;
   threads.emplace_back([&] {
@@ -188,7 +188,7 @@ TEST_CASE("an acknowledged batch survives the process being killed right after")
     options.file = file;
     auto store = std::move(open_sqlite_store(options)).value();
     store->create_depot({0, "Valley", "Europe/Oslo", models::Celsius{-18}});
-    store->create_battery(Fleet::make_battery("VA-0001"), at(0));
+    store->create_battery(testing::make_battery("VA-0001"), at(0));
     const auto ok = store->append_readings({reading("k1", "VA-0001", 1)}, at(1)).ok();
     ::kill(::getpid(), SIGKILL);  // no destructors, no checkpoint
     ::_exit(ok ? 0 : 1);

@@ -35,6 +35,7 @@ LiveFleet::LiveFleet(FleetOptions options) : dir_("pbfleet-live") {
   config.admin_token = dir_ / "admin.token";
   config.extra_args = options.extra_args;
   config.log_level = options.log_level;
+  config.database = options.database;
   server_ = std::make_unique<ServerProcess>(config);
   tokens_["admin"] = server_->admin_token();
   seed(options.batteries_per_depot);

@@ -28,6 +28,7 @@ struct FleetOptions {
   int batteries_per_depot = 4;
   std::vector<std::string> extra_args;  // more daemon flags
   std::string log_level = "info";
+  std::string database;  // PostgreSQL URI; empty = a SQLite file in dir()
 };
 
 class LiveFleet {

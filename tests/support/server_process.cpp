@@ -111,8 +111,12 @@ void ServerProcess::start() {
   const auto port_file = std::filesystem::path(config_.db.string() + ".port");
   std::filesystem::remove(port_file);
   std::vector<std::string> args{executable().string(), "--listen", "127.0.0.1:0",
-                                "--db", config_.db.string(), "--log-level", config_.log_level,
-                                "--port-file", port_file.string()};
+                                "--log-level", config_.log_level, "--port-file", port_file.string()};
+  if (config_.database.empty()) {
+    args.insert(args.end(), {"--db", config_.db.string()});
+  } else {
+    args.insert(args.end(), {"--database", config_.database});
+  }
   if (!config_.admin_token.empty() && !std::filesystem::exists(config_.admin_token)) {
     args.push_back("--init-admin-token");
     args.push_back(config_.admin_token.string());

@@ -36,11 +36,13 @@ class TempDir {
 };
 
 struct ServerConfig {
-  std::filesystem::path db;            // database file (created on first start)
+  std::filesystem::path db;            // database file (created on first start); its
+                                       // folder also holds the port file
   std::filesystem::path log;           // stdout and stderr of the daemon, appended
   std::filesystem::path admin_token;   // --init-admin-token file (written on first start)
   std::vector<std::string> extra_args; // more flags, e.g. {"--header-timeout-ms", "1000"}
   std::string log_level = "info";      // info: one access line per request
+  std::string database;                // PostgreSQL URI: --database instead of --db
 };
 
 class ServerProcess {

@@ -57,11 +57,16 @@ http::Response backup(const Call& call) {
 http::Response durability(const Call& call) {
   auto d = call.ctx.store.durability();
   if (!d) return store_problem(d.error());
-  return json_response(200, {{"journal_mode", d->journal_mode},
-                             {"synchronous", d->synchronous},
-                             {"foreign_keys", d->foreign_keys},
-                             {"busy_timeout_ms", d->busy_timeout_ms},
-                             {"schema_version", d->schema_version}});
+  nlohmann::json body{{"backend", d->backend},
+                      {"journal_mode", d->journal_mode},
+                      {"synchronous", d->synchronous},
+                      {"foreign_keys", d->foreign_keys},
+                      {"busy_timeout_ms", d->busy_timeout_ms},
+                      {"schema_version", d->schema_version}};
+  // PostgreSQL: the commit setting every connection runs with, and the server's fsync.
+  if (!d->synchronous_commit.empty()) body["synchronous_commit"] = d->synchronous_commit;
+  if (d->fsync) body["fsync"] = *d->fsync;
+  return json_response(200, body);
 }
 
 }  // namespace pbfleet::api::handlers

@@ -1,4 +1,4 @@
-// Dashboard sign-in sessions through the Store interface (SQLite).
+// Dashboard sign-in sessions through the Store interface (SQLite and PostgreSQL, each case on both).
 #include "server/storage/store.hpp"  // self-containment check: first include
 
 #include <doctest/doctest.h>
@@ -14,7 +14,8 @@ using testing::Fleet;
 
 const std::string kCsrf(64, 'c');
 
-Id make_token(Fleet& f, Role role = Role::manager) {
+template <class F>
+Id make_token(F& f, Role role = Role::manager) {
   auto t = f.store->create_token("desk", role, std::nullopt, hash_token(new_raw_token()), at(1));
   REQUIRE(t.ok());
   return t->id;
@@ -22,8 +23,8 @@ Id make_token(Fleet& f, Role role = Role::manager) {
 
 }  // namespace
 
-TEST_CASE("a web session is found by its hash with its token, and only by it") {
-  Fleet f;
+STORE_TEST_CASE("a web session is found by its hash with its token, and only by it") {
+  Fleet<Backend> f;
   const Id token = make_token(f);
   const auto cookie = hash_token(new_raw_token());
   const auto made = f.store->create_web_session(cookie, token, kCsrf, at(2), at(3));
@@ -42,8 +43,8 @@ TEST_CASE("a web session is found by its hash with its token, and only by it") {
         StoreErrc::not_found);
 }
 
-TEST_CASE("ending a web session makes it unknown, and ending it twice is fine") {
-  Fleet f;
+STORE_TEST_CASE("ending a web session makes it unknown, and ending it twice is fine") {
+  Fleet<Backend> f;
   const auto cookie = hash_token(new_raw_token());
   REQUIRE(f.store->create_web_session(cookie, make_token(f), kCsrf, at(2), at(3)).ok());
   CHECK(f.store->end_web_session(cookie).ok());
@@ -51,8 +52,8 @@ TEST_CASE("ending a web session makes it unknown, and ending it twice is fine") 
   CHECK(f.store->end_web_session(cookie).ok());
 }
 
-TEST_CASE("revoking a token ends every web session opened with it, and no other") {
-  Fleet f;
+STORE_TEST_CASE("revoking a token ends every web session opened with it, and no other") {
+  Fleet<Backend> f;
   const Id revoked = make_token(f);
   const Id kept = make_token(f);
   const auto a = hash_token(new_raw_token());
@@ -67,8 +68,8 @@ TEST_CASE("revoking a token ends every web session opened with it, and no other"
   CHECK(f.store->find_web_session(c).ok());
 }
 
-TEST_CASE("a web session needs a known token and an end after its start, and expired ones are swept") {
-  Fleet f;
+STORE_TEST_CASE("a web session needs a known token and an end after its start, and expired ones are swept") {
+  Fleet<Backend> f;
   const Id token = make_token(f);
   const auto unknown = f.store->create_web_session(hash_token("x"), token + 99, kCsrf, at(2), at(3));
   REQUIRE_FALSE(unknown.ok());

@@ -1,4 +1,4 @@
-// Depots, vehicles and batteries through the Store interface (SQLite).
+// Depots, vehicles and batteries through the Store interface (SQLite and PostgreSQL, each case on both).
 #include "server/storage/store.hpp"  // self-containment check: first include
 
 #include <doctest/doctest.h>
@@ -15,8 +15,8 @@ using testing::Fleet;
 
 }  // namespace
 
-TEST_CASE("a depot is stored and read back field for field") {
-  Fleet f;
+STORE_TEST_CASE("a depot is stored and read back field for field") {
+  Fleet<Backend> f;
   const auto got = f.store->get_depot(f.depot.id);
   REQUIRE(got.ok());
   CHECK(got->name == "North Yard");
@@ -24,8 +24,8 @@ TEST_CASE("a depot is stored and read back field for field") {
   CHECK(got->design_low_c.value == -25.0);
 }
 
-TEST_CASE("a second depot with the same name is a conflict naming the field") {
-  Fleet f;
+STORE_TEST_CASE("a second depot with the same name is a conflict naming the field") {
+  Fleet<Backend> f;
   const auto dup = f.store->create_depot({0, "North Yard", "Europe/Oslo", models::Celsius{-3}});
   REQUIRE_FALSE(dup.ok());
   CHECK(dup.error().code == StoreErrc::conflict);
@@ -33,8 +33,8 @@ TEST_CASE("a second depot with the same name is a conflict naming the field") {
   CHECK(f.store->list_depots({}).value().items.size() == 1);
 }
 
-TEST_CASE("updating a depot changes it, an unknown id is not found") {
-  Fleet f;
+STORE_TEST_CASE("updating a depot changes it, an unknown id is not found") {
+  Fleet<Backend> f;
   Depot d = f.depot;
   d.design_low_c = models::Celsius{-32};
   d.name = "North Yard (old hall)";
@@ -46,8 +46,8 @@ TEST_CASE("updating a depot changes it, an unknown id is not found") {
   CHECK(f.store->get_depot(999).error().code == StoreErrc::not_found);
 }
 
-TEST_CASE("SQL meta characters and unicode are stored verbatim") {
-  Fleet f;
+STORE_TEST_CASE("SQL meta characters and unicode are stored verbatim") {
+  Fleet<Backend> f;
   const std::string tricky = "Robert'); DROP TABLE depots;-- \"quoted\" % _ \\ ;";
   const std::string nordic = "Fjellvik Ø-stasjon — Tromsø 北 🚚";
   const auto a = f.store->create_depot({0, tricky, "Europe/Oslo", models::Celsius{-10}});
@@ -58,15 +58,15 @@ TEST_CASE("SQL meta characters and unicode are stored verbatim") {
   CHECK(f.store->get_depot(b->id)->name == nordic);
   CHECK(f.store->list_depots({}).value().items.size() == 3);
 
-  auto battery = Fleet::make_battery("SN'; DELETE FROM batteries; --");
+  auto battery = testing::make_battery("SN'; DELETE FROM batteries; --");
   REQUIRE(f.store->create_battery(battery, at(0)).ok());
   CHECK(f.store->get_battery("SN'; DELETE FROM batteries; --").ok());
   CHECK(f.store->get_battery("NY-0001").ok());
   CHECK(f.store->get_battery("SN%").error().code == StoreErrc::not_found);  // no LIKE matching
 }
 
-TEST_CASE("a vehicle needs an existing depot and a unique code") {
-  Fleet f;
+STORE_TEST_CASE("a vehicle needs an existing depot and a unique code") {
+  Fleet<Backend> f;
   const auto orphan = f.store->create_vehicle({0, "TR-200", 999, Engine::diesel, {}, {}});
   REQUIRE_FALSE(orphan.ok());
   CHECK(orphan.error().code == StoreErrc::constraint);
@@ -76,8 +76,8 @@ TEST_CASE("a vehicle needs an existing depot and a unique code") {
   CHECK(dup.error().field == "code");
 }
 
-TEST_CASE("a vehicle keeps its engine, displacement and required cranking current") {
-  Fleet f;
+STORE_TEST_CASE("a vehicle keeps its engine, displacement and required cranking current") {
+  Fleet<Backend> f;
   const auto v = f.store->create_vehicle(
       {0, "VN-7", f.depot.id, Engine::gasoline, std::nullopt, models::Amperes{540}});
   REQUIRE(v.ok());
@@ -89,8 +89,8 @@ TEST_CASE("a vehicle keeps its engine, displacement and required cranking curren
   CHECK(f.store->get_vehicle(f.vehicle.id)->displacement_l == 7.7);
 }
 
-TEST_CASE("vehicles list by depot") {
-  Fleet f;
+STORE_TEST_CASE("vehicles list by depot") {
+  Fleet<Backend> f;
   const Id harbour =
       f.store->create_depot({0, "Harbour", "Europe/Oslo", models::Celsius{-12}}).value().id;
   REQUIRE(f.store->create_vehicle({0, "HB-1", harbour, Engine::diesel, {}, {}}).ok());
@@ -100,8 +100,8 @@ TEST_CASE("vehicles list by depot") {
   CHECK(f.store->list_vehicles({}, {}).value().items.size() == 3);
 }
 
-TEST_CASE("a battery is stored with its ratings and the depot of its vehicle") {
-  Fleet f;
+STORE_TEST_CASE("a battery is stored with its ratings and the depot of its vehicle") {
+  Fleet<Backend> f;
   const Battery b = f.store->get_battery("NY-0001").value();
   CHECK(b.chemistry == models::Chemistry::flooded);
   CHECK(b.cells == 6);
@@ -115,18 +115,18 @@ TEST_CASE("a battery is stored with its ratings and the depot of its vehicle") {
   CHECK(b.status == BatteryStatus::in_service);
 }
 
-TEST_CASE("a duplicate serial is a conflict, an unknown vehicle a constraint") {
-  Fleet f;
-  CHECK(f.store->create_battery(Fleet::make_battery("NY-0001"), at(0)).error().code ==
+STORE_TEST_CASE("a duplicate serial is a conflict, an unknown vehicle a constraint") {
+  Fleet<Backend> f;
+  CHECK(f.store->create_battery(testing::make_battery("NY-0001"), at(0)).error().code ==
         StoreErrc::conflict);
-  const auto bad = f.store->create_battery(Fleet::make_battery("NY-0009", 404), at(0));
+  const auto bad = f.store->create_battery(testing::make_battery("NY-0009", 404), at(0));
   CHECK(bad.error().code == StoreErrc::constraint);
   CHECK(bad.error().field == "vehicle_id");
   CHECK(f.store->get_battery("NY-0009").error().code == StoreErrc::not_found);
 }
 
-TEST_CASE("updating a battery changes ratings but not its fitting or status") {
-  Fleet f;
+STORE_TEST_CASE("updating a battery changes ratings but not its fitting or status") {
+  Fleet<Backend> f;
   Battery b = f.battery;
   b.rated_cca_a = models::Amperes{760};
   b.chemistry = models::Chemistry::efb;
@@ -138,8 +138,8 @@ TEST_CASE("updating a battery changes ratings but not its fitting or status") {
   CHECK(got.vehicle_id == f.vehicle.id);
 }
 
-TEST_CASE("fitting and retiring record events and retiring unfits the battery") {
-  Fleet f;
+STORE_TEST_CASE("fitting and retiring record events and retiring unfits the battery") {
+  Fleet<Backend> f;
   const Id other =
       f.store->create_vehicle({0, "TR-105", f.depot.id, Engine::diesel, 12.8, {}}).value().id;
   REQUIRE(f.store->fit_battery("NY-0001", other, at(3)).ok());
@@ -167,10 +167,10 @@ TEST_CASE("fitting and retiring record events and retiring unfits the battery") 
   CHECK(f.store->fit_battery("NY-0001", other, at(11)).error().code == StoreErrc::conflict);
 }
 
-TEST_CASE("get_battery answers from its cache only while no fleet write came in between") {
+STORE_TEST_CASE("get_battery answers from its cache only while no fleet write came in between") {
   // Every posted reading looks its battery up, so the store keeps the last
   // answer per serial; each change below must still show at once.
-  Fleet f;
+  Fleet<Backend> f;
   CHECK(f.store->get_battery("NY-0001")->status == BatteryStatus::in_service);
   CHECK(f.store->get_battery("NY-0001")->depot_id == f.depot.id);  // served from the cache
 
@@ -193,16 +193,16 @@ TEST_CASE("get_battery answers from its cache only while no fleet write came in 
 
   // A serial registered after a miss is found.
   CHECK(f.store->get_battery("NY-0077").error().code == StoreErrc::not_found);
-  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0077"), at(6)).ok());
+  REQUIRE(f.store->create_battery(testing::make_battery("NY-0077"), at(6)).ok());
   CHECK(f.store->get_battery("NY-0077").ok());
 }
 
-TEST_CASE("batteries filter by depot, status and chemistry") {
-  Fleet f;
-  auto agm = Fleet::make_battery("NY-0002", f.vehicle.id);
+STORE_TEST_CASE("batteries filter by depot, status and chemistry") {
+  Fleet<Backend> f;
+  auto agm = testing::make_battery("NY-0002", f.vehicle.id);
   agm.chemistry = models::Chemistry::agm;
   REQUIRE(f.store->create_battery(agm, at(0)).ok());
-  REQUIRE(f.store->create_battery(Fleet::make_battery("STOCK-1"), at(0)).ok());
+  REQUIRE(f.store->create_battery(testing::make_battery("STOCK-1"), at(0)).ok());
   REQUIRE(f.store->retire_battery("STOCK-1", "dropped", at(1)).ok());
 
   CHECK(f.store->list_batteries({f.depot.id, {}, {}}, {}).value().items.size() == 2);
@@ -213,8 +213,8 @@ TEST_CASE("batteries filter by depot, status and chemistry") {
   CHECK(f.store->list_batteries({}, {}).value().items.size() == 3);
 }
 
-TEST_CASE("keyset pages list every existing object exactly once while others are inserted") {
-  Fleet f;
+STORE_TEST_CASE("keyset pages list every existing object exactly once while others are inserted") {
+  Fleet<Backend> f;
   std::set<Id> before{f.depot.id};
   for (int i = 0; i < 24; ++i) {
     before.insert(
@@ -242,8 +242,8 @@ TEST_CASE("keyset pages list every existing object exactly once while others are
   CHECK(std::set<Id>(seen.begin(), seen.end()).size() == seen.size());
 }
 
-TEST_CASE("page limits are clamped and a bad cursor is refused") {
-  Fleet f;
+STORE_TEST_CASE("page limits are clamped and a bad cursor is refused") {
+  Fleet<Backend> f;
   for (int i = 0; i < 3; ++i) {
     REQUIRE(f.store->create_depot({0, "D" + std::to_string(i), "UTC", models::Celsius{0}}).ok());
   }

@@ -1,10 +1,11 @@
-// Readings through the Store interface (SQLite): atomic idempotent batches,
+// Readings through the Store interface (SQLite and PostgreSQL, each case on both): atomic idempotent batches,
 // group commit, bulk load and the report queries.
 #include "server/storage/store.hpp"  // self-containment check: first include
 
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <cstdio>
 #include <set>
 
 #include "fixture.hpp"
@@ -26,8 +27,8 @@ std::vector<ReadingInput> week_round(const std::string& prefix, int count, int d
 
 }  // namespace
 
-TEST_CASE("a batch is stored whole and every raw field reads back unchanged") {
-  Fleet f;
+STORE_TEST_CASE("a batch is stored whole and every raw field reads back unchanged") {
+  Fleet<Backend> f;
   ReadingInput r = reading("r-1", "NY-0001", 3);
   r.electrolyte = models::wire::EnteredTemperature{models::Celsius{-5}, models::wire::TempUnit::f};
   r.ambient = models::wire::EnteredTemperature{models::Celsius{-12.5}, models::wire::TempUnit::c};
@@ -67,8 +68,8 @@ TEST_CASE("a batch is stored whole and every raw field reads back unchanged") {
   CHECK(s.water_added);
 }
 
-TEST_CASE("optional fields left out stay absent") {
-  Fleet f;
+STORE_TEST_CASE("optional fields left out stay absent") {
+  Fleet<Backend> f;
   ReadingInput r;
   r.reading_id = "bare";
   r.serial = "NY-0001";
@@ -83,8 +84,8 @@ TEST_CASE("optional fields left out stay absent") {
   CHECK_FALSE(s.load_test_current.has_value());
 }
 
-TEST_CASE("one unknown serial refuses the whole batch and every bad row is listed") {
-  Fleet f;
+STORE_TEST_CASE("one unknown serial refuses the whole batch and every bad row is listed") {
+  Fleet<Backend> f;
   auto batch = week_round("atom-", 5);
   batch[1].serial = "NO-SUCH";
   batch[3].serial = "ALSO-MISSING";
@@ -103,8 +104,8 @@ TEST_CASE("one unknown serial refuses the whole batch and every bad row is liste
   CHECK(f.store->readings_for("NY-0001", {}, {}).value().empty());
 }
 
-TEST_CASE("the same reading id with the same content replays the original") {
-  Fleet f;
+STORE_TEST_CASE("the same reading id with the same content replays the original") {
+  Fleet<Backend> f;
   const auto first = f.store->append_readings(week_round("w-", 3), at(5)).value();
   REQUIRE(first.accepted());
   const auto again = f.store->append_readings(week_round("w-", 3), at(6)).value();
@@ -119,8 +120,8 @@ TEST_CASE("the same reading id with the same content replays the original") {
   CHECK(f.store->readings_count().value() == 3);
 }
 
-TEST_CASE("a batch mixing new readings and replays stores only the new ones") {
-  Fleet f;
+STORE_TEST_CASE("a batch mixing new readings and replays stores only the new ones") {
+  Fleet<Backend> f;
   REQUIRE(f.store->append_readings(week_round("m-", 2), at(5))->accepted());
   const auto out = f.store->append_readings(week_round("m-", 4), at(6)).value();
   REQUIRE(out.accepted());
@@ -130,8 +131,8 @@ TEST_CASE("a batch mixing new readings and replays stores only the new ones") {
   CHECK(f.store->readings_count().value() == 4);
 }
 
-TEST_CASE("the same reading id with other content is a conflict naming the id, nothing is stored") {
-  Fleet f;
+STORE_TEST_CASE("the same reading id with other content is a conflict naming the id, nothing is stored") {
+  Fleet<Backend> f;
   REQUIRE(f.store->append_readings({reading("dup", "NY-0001", 1)}, at(2))->accepted());
   auto changed = reading("dup", "NY-0001", 1);
   changed.ocv = models::Volts{12.40};
@@ -147,8 +148,8 @@ TEST_CASE("the same reading id with other content is a conflict naming the id, n
   CHECK(f.store->readings_for("NY-0001", {}, {}).value().at(0).ocv->value == 12.62);
 }
 
-TEST_CASE("a reading id repeated inside one batch is one reading, or a conflict if it differs") {
-  Fleet f;
+STORE_TEST_CASE("a reading id repeated inside one batch is one reading, or a conflict if it differs") {
+  Fleet<Backend> f;
   const auto twice =
       f.store->append_readings({reading("x", "NY-0001", 1), reading("x", "NY-0001", 1)}, at(2))
           .value();
@@ -165,8 +166,8 @@ TEST_CASE("a reading id repeated inside one batch is one reading, or a conflict 
   CHECK(f.store->readings_count().value() == 1);
 }
 
-TEST_CASE("readings without an id get a unique one and are never merged") {
-  Fleet f;
+STORE_TEST_CASE("readings without an id get a unique one and are never merged") {
+  Fleet<Backend> f;
   auto a = reading("", "NY-0001", 1);
   const auto out = f.store->append_readings({a, a}, at(2)).value();
   REQUIRE(out.accepted());
@@ -175,8 +176,8 @@ TEST_CASE("readings without an id get a unique one and are never merged") {
   CHECK(out.readings[0].reading_id != out.readings[1].reading_id);
 }
 
-TEST_CASE("group commit accepts and refuses each batch on its own in one transaction") {
-  Fleet f;
+STORE_TEST_CASE("group commit accepts and refuses each batch on its own in one transaction") {
+  Fleet<Backend> f;
   REQUIRE(f.store->append_readings({reading("seen", "NY-0001", 1)}, at(1))->accepted());
   auto bad = week_round("g2-", 2);
   bad[1].serial = "GHOST";
@@ -195,8 +196,48 @@ TEST_CASE("group commit accepts and refuses each batch on its own in one transac
   for (const auto& r : all) CHECK(r.reading_id.rfind("g2-", 0) != 0);
 }
 
-TEST_CASE("the bulk loader stores a batch in one go and refuses duplicates whole") {
-  Fleet f;
+STORE_TEST_CASE("texts with quotes, backslashes, braces, commas and NULL read back verbatim") {
+  Fleet<Backend> f;
+  auto r = reading("t\"1\\,{x}", "NY-0001", 1);
+  r.note = "cell \"3\" {low}, NULL; back\\slash 'quote' \xE2\x80\x94 ok";
+  r.logged_by = "NULL";
+  r.source = "";
+  REQUIRE(f.store->append_readings({r, reading("plain", "NY-0001", 2)}, at(3))->accepted());
+  const auto back = f.store->readings_for("NY-0001", {}, {}).value();
+  REQUIRE(back.size() == 2);
+  CHECK(back[0].reading_id == r.reading_id);
+  CHECK(back[0].note == r.note);
+  CHECK(back[0].logged_by == "NULL");
+  CHECK(back[0].source.empty());
+  CHECK_FALSE(back[0].ambient.has_value());
+  // The same text again is a replay, not a conflict.
+  CHECK(f.store->append_readings({r}, at(4))->replayed_count == 1);
+}
+
+STORE_TEST_CASE("a reading id new in two batches of one group is stored by the first, replayed by the second") {
+  Fleet<Backend> f;
+  auto changed = reading("twice", "NY-0001", 1);
+  changed.note = "other";
+  const auto outcomes = f.store->append_reading_batches(
+      {{reading("twice", "NY-0001", 1), reading("a", "NY-0001", 2)},
+       {reading("twice", "NY-0001", 1)},
+       {changed, reading("b", "NY-0001", 3)}},
+      at(5)).value();
+  REQUIRE(outcomes.size() == 3);
+  REQUIRE(outcomes[0].accepted());
+  CHECK(outcomes[0].stored == 2);
+  REQUIRE(outcomes[1].accepted());
+  CHECK(outcomes[1].replayed_count == 1);
+  CHECK(outcomes[1].readings[0].id == outcomes[0].readings[0].id);
+  REQUIRE_FALSE(outcomes[2].accepted());
+  CHECK(outcomes[2].problems.at(0).code == StoreErrc::conflict);
+  CHECK(outcomes[2].problems.at(0).row == 0);
+  CHECK(f.store->readings_count().value() == 2);
+  CHECK(f.store->readings_for("NY-0001", {}, {}).value().size() == 2);  // "b" left nothing
+}
+
+STORE_TEST_CASE("the bulk loader stores a batch in one go and refuses duplicates whole") {
+  Fleet<Backend> f;
   const auto loaded = f.store->load_readings(week_round("bulk-", 50), at(1));
   REQUIRE(loaded.ok());
   CHECK(*loaded == 50);
@@ -211,9 +252,9 @@ TEST_CASE("the bulk loader stores a batch in one go and refuses duplicates whole
         StoreErrc::not_found);
 }
 
-TEST_CASE("history is one battery's readings in time order within the range") {
-  Fleet f;
-  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+STORE_TEST_CASE("history is one battery's readings in time order within the range") {
+  Fleet<Backend> f;
+  REQUIRE(f.store->create_battery(testing::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
   auto batch = week_round("h-", 6);          // days 1..6
   std::reverse(batch.begin(), batch.end());  // logged out of order
   batch.push_back(reading("other", "NY-0002", 3));
@@ -229,10 +270,10 @@ TEST_CASE("history is one battery's readings in time order within the range") {
   CHECK(f.store->readings_for("NOPE", {}, {}).error().code == StoreErrc::not_found);
 }
 
-TEST_CASE("last readings per battery come newest first, at most N each") {
-  Fleet f;
-  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
-  REQUIRE(f.store->create_battery(Fleet::make_battery("STOCK-9"), at(0)).ok());
+STORE_TEST_CASE("last readings per battery come newest first, at most N each") {
+  Fleet<Backend> f;
+  REQUIRE(f.store->create_battery(testing::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+  REQUIRE(f.store->create_battery(testing::make_battery("STOCK-9"), at(0)).ok());
   auto batch = week_round("l-", 20);
   batch.push_back(reading("n2-a", "NY-0002", 5));
   REQUIRE(f.store->append_readings(batch, at(30))->accepted());
@@ -249,10 +290,10 @@ TEST_CASE("last readings per battery come newest first, at most N each") {
   CHECK(everyone[2].readings.empty());
 }
 
-TEST_CASE("visiting last measurements gives last_readings' readings, measured fields only") {
-  Fleet f;
-  REQUIRE(f.store->create_battery(Fleet::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
-  REQUIRE(f.store->create_battery(Fleet::make_battery("STOCK-9"), at(0)).ok());
+STORE_TEST_CASE("visiting last measurements gives last_readings' readings, measured fields only") {
+  Fleet<Backend> f;
+  REQUIRE(f.store->create_battery(testing::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+  REQUIRE(f.store->create_battery(testing::make_battery("STOCK-9"), at(0)).ok());
   auto batch = week_round("v-", 20);
   batch[19].electrolyte = models::wire::EnteredTemperature{models::Celsius{-5}, models::wire::TempUnit::f};
   batch[19].load_test_current = models::Amperes{400};
@@ -302,8 +343,35 @@ TEST_CASE("visiting last measurements gives last_readings' readings, measured fi
   CHECK(newest.electrolyte->value.value == doctest::Approx(-5));
 }
 
-TEST_CASE("the latest settled reading skips readings with too little rest") {
-  Fleet f;
+STORE_TEST_CASE("report reads over more batteries than one chunk keep each battery's readings apart") {
+  // The PostgreSQL store asks for 500 batteries per statement; 510 cross it.
+  Fleet<Backend> f;
+  std::vector<ReadingInput> rows;
+  for (int i = 2; i <= 510; ++i) {
+    char serial[16];
+    std::snprintf(serial, sizeof serial, "NY-%04d", i);
+    REQUIRE(f.store->create_battery(testing::make_battery(serial, f.vehicle.id), at(0)).ok());
+    for (int k = 0; k < i % 3; ++k) rows.push_back(reading(std::string(serial) + "-" + std::to_string(k), serial, k + 1));
+  }
+  REQUIRE(f.store->load_readings(rows, at(9)).ok());
+  const auto last = f.store->last_readings({}, 5).value();
+  REQUIRE(last.size() == 510);
+  std::size_t visited = 0;
+  REQUIRE(f.store->visit_last_measurements({}, 5, [&](const Battery& b, auto newest_first) {
+    const auto& expected = last[visited++];
+    CHECK(b.serial == expected.battery.serial);
+    CHECK(newest_first.size() == expected.readings.size());
+  }).ok());
+  CHECK(visited == 510);
+  for (const auto& br : last) {
+    const int i = std::stoi(br.battery.serial.substr(3));
+    CHECK(br.readings.size() == static_cast<std::size_t>(i == 1 ? 0 : i % 3));
+    for (const auto& r : br.readings) CHECK(r.serial == br.battery.serial);
+  }
+}
+
+STORE_TEST_CASE("the latest settled reading skips readings with too little rest") {
+  Fleet<Backend> f;
   auto rested = reading("s-1", "NY-0001", 1);
   rested.rest = models::Hours{30};
   auto newer_rested = reading("s-2", "NY-0001", 2);
@@ -322,8 +390,8 @@ TEST_CASE("the latest settled reading skips readings with too little rest") {
   CHECK(day[0].readings.at(0).reading_id == "s-1");
 }
 
-TEST_CASE("reading pages cover every stored reading once while new ones arrive") {
-  Fleet f;
+STORE_TEST_CASE("reading pages cover every stored reading once while new ones arrive") {
+  Fleet<Backend> f;
   REQUIRE(f.store->load_readings(week_round("p-", 1005), at(1)).ok());
   const auto huge = f.store->list_readings({}, {5000, ""}).value();
   CHECK(huge.items.size() == kMaxPageLimit);
@@ -344,8 +412,8 @@ TEST_CASE("reading pages cover every stored reading once while new ones arrive")
   for (int i = 0; i < 1005; ++i) CHECK(seen.count("p-" + std::to_string(i)) == 1);
 }
 
-TEST_CASE("reading lists filter by time") {
-  Fleet f;
+STORE_TEST_CASE("reading lists filter by time") {
+  Fleet<Backend> f;
   REQUIRE(f.store->append_readings(week_round("t-", 10), at(11))->accepted());
   const auto page = f.store->list_readings({std::nullopt, at(3), at(5)}, {}).value();
   CHECK(page.items.size() == 3);

@@ -1,4 +1,4 @@
-// API tokens through the Store interface (SQLite).
+// API tokens through the Store interface (SQLite and PostgreSQL, each case on both).
 #include "server/storage/store.hpp"  // self-containment check: first include
 
 #include <doctest/doctest.h>
@@ -22,8 +22,8 @@ std::string file_bytes(const std::filesystem::path& path) {
 
 }  // namespace
 
-TEST_CASE("a token is found by its hash with its role and scope") {
-  Fleet f;
+STORE_TEST_CASE("a token is found by its hash with its role and scope") {
+  Fleet<Backend> f;
   const std::string raw = new_raw_token();
   const auto made =
       f.store->create_token("crew tablet 1", Role::crew, f.depot.id, hash_token(raw), at(1));
@@ -52,8 +52,8 @@ TEST_CASE("the raw token never reaches the database file") {
   CHECK(file_bytes(f.dir.file("fleet.db")).size() > 0);
 }
 
-TEST_CASE("revoking a token marks it at once and keeps the first revocation time") {
-  Fleet f;
+STORE_TEST_CASE("revoking a token marks it at once and keeps the first revocation time") {
+  Fleet<Backend> f;
   const auto hash = hash_token(new_raw_token());
   const Id id = f.store->create_token("old", Role::manager, std::nullopt, hash, at(1)).value().id;
   REQUIRE(f.store->revoke_token(id, at(2)).ok());
@@ -62,16 +62,16 @@ TEST_CASE("revoking a token marks it at once and keeps the first revocation time
   CHECK(f.store->revoke_token(999, at(3)).error().code == StoreErrc::not_found);
 }
 
-TEST_CASE("a token scoped to an unknown depot is refused") {
-  Fleet f;
+STORE_TEST_CASE("a token scoped to an unknown depot is refused") {
+  Fleet<Backend> f;
   const auto bad = f.store->create_token("x", Role::crew, 404, hash_token("t"), at(1));
   REQUIRE_FALSE(bad.ok());
   CHECK(bad.error().code == StoreErrc::constraint);
   CHECK(f.store->list_tokens({}).value().items.empty());
 }
 
-TEST_CASE("tokens list in pages") {
-  Fleet f;
+STORE_TEST_CASE("tokens list in pages") {
+  Fleet<Backend> f;
   for (int i = 0; i < 5; ++i) {
     REQUIRE(f.store
                 ->create_token("t" + std::to_string(i), Role::technician, std::nullopt,
@@ -90,8 +90,8 @@ TEST_CASE("tokens list in pages") {
 
 namespace pbfleet::storage {
 
-TEST_CASE("a token keeps its expiry, and one expiring before it was made is refused") {
-  Fleet f;
+STORE_TEST_CASE("a token keeps its expiry, and one expiring before it was made is refused") {
+  Fleet<Backend> f;
   const auto hash = hash_token(new_raw_token());
   const auto made = f.store->create_token("shift", Role::crew, std::nullopt, hash, at(1), at(8));
   REQUIRE(made.ok());

@@ -1,0 +1,371 @@
+// Storing readings on PostgreSQL: idempotent batches, group commit and the
+// bulk load, set at a time. The rules are sqlite_readings.cpp's; the way
+// differs because every statement is a round trip to the server:
+//
+//   1. battery ids of every serial in the group: from the store's id cache
+//      (a serial's id never changes), else one query;
+//   2. each row checked in memory (unknown serial, a reading_id repeated
+//      inside its batch, with the same or other content);
+//   3. the new rows of every batch still clean go in ONE
+//      INSERT ... SELECT FROM unnest(arrays) ON CONFLICT (reading_id)
+//      DO NOTHING RETURNING id, reading_id;
+//   4. the rows that did not go in are looked up by reading_id, one query,
+//      and their content hashes compared (same: a replay answered with the
+//      original, fetched in one more query; other: a conflict);
+//   5. a batch with any problem has its new rows deleted again, so it
+//      leaves nothing; the others stand.
+//
+// All of it runs in one write transaction under the cross-instance write
+// lock (pg_store.hpp), so no other instance inserts between 3 and 4. When a
+// reading_id is new in two batches of one group (a client retrying while
+// its first request is still queued), the batches go one at a time so the
+// first one owns the row, as on SQLite.
+#include <openssl/rand.h>
+
+#include <algorithm>
+#include <map>
+#include <unordered_map>
+#include <unordered_set>
+
+#include "server/storage/pg_rows.hpp"
+#include "server/storage/pg_store_impl.hpp"
+
+namespace pbfleet::storage::pg {
+namespace {
+
+using models::wire::ReadingInput;
+using std::chrono::sys_seconds;
+using Tx = pqxx::transaction_base;
+
+constexpr std::size_t kLoadChunk = 5000;  // rows per INSERT in the bulk load
+
+// A reading id for a reading the client sent without one: 96 random bits.
+std::string assigned_reading_id() {
+  unsigned char bytes[12];
+  if (RAND_bytes(bytes, sizeof bytes) != 1) fail(StoreErrc::internal, "random source failed");
+  static constexpr char kHex[] = "0123456789abcdef";
+  std::string id = "srv-";
+  for (unsigned char b : bytes) {
+    id += kHex[b >> 4];
+    id += kHex[b & 0xf];
+  }
+  return id;
+}
+
+template <class Q>
+std::optional<double> raw(const std::optional<Q>& q) {
+  return q ? std::optional<double>(q->value) : std::nullopt;
+}
+
+std::optional<double> temperature(const std::optional<models::wire::EnteredTemperature>& t) {
+  return t ? std::optional<double>(t->value.value) : std::nullopt;
+}
+
+std::optional<std::string> unit(const std::optional<models::wire::EnteredTemperature>& t) {
+  if (!t) return std::nullopt;
+  return std::string(t->unit == models::wire::TempUnit::f ? "F" : "C");
+}
+
+// One array per readings column, in the INSERT's column order.
+class Columns {
+ public:
+  void add(const ReadingInput& r, Id battery_id, sys_seconds now, const ContentHash& hash) {
+    c_[0].text(r.reading_id);
+    c_[1].integer(battery_id);
+    c_[2].integer(to_db(r.taken_at));
+    c_[3].integer(to_db(now));
+    c_[4].number(raw(r.ocv));
+    c_[5].text(encode_cell_sg(r.cell_sg));
+    c_[6].number(temperature(r.electrolyte));
+    c_[7].opt_text(unit(r.electrolyte));
+    c_[8].number(temperature(r.ambient));
+    c_[9].opt_text(unit(r.ambient));
+    c_[10].number(raw(r.rest));
+    c_[11].number(raw(r.load_test_current));
+    c_[12].number(raw(r.load_test_end));
+    c_[13].text(r.logged_by);
+    c_[14].text(r.source);
+    c_[15].text(r.note);
+    c_[16].boolean(r.after_charge);
+    c_[17].boolean(r.water_added);
+    c_[18].text(bytea_param(hash.data(), hash.size()));
+    ++rows_;
+  }
+  [[nodiscard]] std::size_t rows() const { return rows_; }
+
+  // Inserts the rows; reading_id -> id of those that went in.
+  std::unordered_map<std::string, Id> insert(Tx& tx) const {
+    std::unordered_map<std::string, Id> ids;
+    if (rows_ == 0) return ids;
+    const auto result = tx.exec_prepared(
+        "readings_insert_many", c_[0].str(), c_[1].str(), c_[2].str(), c_[3].str(), c_[4].str(),
+        c_[5].str(), c_[6].str(), c_[7].str(), c_[8].str(), c_[9].str(), c_[10].str(),
+        c_[11].str(), c_[12].str(), c_[13].str(), c_[14].str(), c_[15].str(), c_[16].str(),
+        c_[17].str(), c_[18].str());
+    ids.reserve(result.size());
+    for (const auto& row : result) ids.emplace(text(row[1]), row[0].as<Id>());
+    return ids;
+  }
+
+ private:
+  ArrayLiteral c_[19];
+  std::size_t rows_ = 0;
+};
+
+RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
+  return RowProblem{row, StoreErrc::conflict, "reading_id",
+                    "reading_id '" + reading_id +
+                        "' was already used for a reading with different content; a retry must "
+                        "resend exactly the same reading, a new reading needs a new id"};
+}
+
+// One row of a batch after the in-memory checks.
+struct Row {
+  ReadingInput input;
+  Id battery_id = 0;
+  ContentHash hash{};
+  std::optional<std::size_t> same_as;  // an earlier row of the batch with this id and content
+  bool problem = false;
+};
+
+struct BatchWork {
+  std::vector<Row> rows;
+  std::vector<RowProblem> problems;
+  std::vector<Id> inserted;  // row ids this batch added
+};
+
+// Step 2: every row of one batch checked in memory.
+BatchWork check_batch(const std::vector<ReadingInput>& batch,
+                      const std::unordered_map<std::string, Id>& ids) {
+  BatchWork w;
+  w.rows.resize(batch.size());
+  std::unordered_map<std::string, std::size_t> first;  // reading_id -> row
+  for (std::size_t i = 0; i < batch.size(); ++i) {
+    Row& row = w.rows[i];
+    row.input = batch[i];
+    const auto id = ids.find(row.input.serial);
+    if (id == ids.end()) {
+      w.problems.push_back({i, StoreErrc::not_found, "serial",
+                            "no battery with serial '" + row.input.serial + "'"});
+      row.problem = true;
+      continue;
+    }
+    row.battery_id = id->second;
+    row.hash = content_hash(row.input);
+    if (row.input.reading_id.empty()) row.input.reading_id = assigned_reading_id();
+    if (auto it = first.find(row.input.reading_id); it != first.end()) {
+      if (w.rows[it->second].hash == row.hash) {
+        row.same_as = it->second;
+      } else {
+        w.problems.push_back(conflict_problem(i, row.input.reading_id));
+        row.problem = true;
+      }
+      continue;
+    }
+    first.emplace(row.input.reading_id, i);
+  }
+  return w;
+}
+
+// The stored readings with these reading_ids: id and content hash.
+std::unordered_map<std::string, std::pair<Id, ContentHash>> existing(
+    Tx& tx, const std::vector<std::string>& reading_ids) {
+  std::unordered_map<std::string, std::pair<Id, ContentHash>> out;
+  if (reading_ids.empty()) return out;
+  ArrayLiteral list;
+  for (const auto& id : reading_ids) list.text(id);
+  for (const auto& row : tx.exec_prepared("readings_existing", list.str())) {
+    std::pair<Id, ContentHash> e{row[0].as<Id>(), {}};
+    bytea_into(row[2], e.second.data(), e.second.size());
+    out.emplace(text(row[1]), e);
+  }
+  return out;
+}
+
+std::unordered_map<Id, StoredReading> originals(Tx& tx, const std::vector<Id>& ids) {
+  std::unordered_map<Id, StoredReading> out;
+  if (ids.empty()) return out;
+  ArrayLiteral list;
+  for (Id id : ids) list.integer(id);
+  for (const auto& row : tx.exec_prepared("readings_by_ids", list.str())) {
+    StoredReading r = read_reading(row);
+    out.emplace(r.id, std::move(r));
+  }
+  return out;
+}
+
+bool reading_id_in_two_batches(const std::vector<BatchWork>& work) {
+  std::unordered_map<std::string, std::size_t> owner;
+  for (std::size_t b = 0; b < work.size(); ++b) {
+    for (const Row& row : work[b].rows) {
+      if (row.problem || row.same_as) continue;
+      auto [it, fresh] = owner.emplace(row.input.reading_id, b);
+      if (!fresh && it->second != b) return true;
+    }
+  }
+  return false;
+}
+
+// Steps 3 to 5 for checked batches whose new reading_ids are distinct.
+std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, sys_seconds now) {
+  Columns columns;
+  for (const BatchWork& w : work) {
+    if (!w.problems.empty()) continue;
+    for (const Row& row : w.rows)
+      if (!row.same_as) columns.add(row.input, row.battery_id, now, row.hash);
+  }
+  const auto inserted = columns.insert(tx);
+  std::vector<std::string> missing;
+  for (const BatchWork& w : work)
+    for (const Row& row : w.rows)
+      if (!row.problem && !row.same_as && !inserted.count(row.input.reading_id))
+        missing.push_back(row.input.reading_id);
+  const auto earlier = existing(tx, missing);
+  std::vector<Id> replay_ids;
+  for (BatchWork& w : work) {
+    for (std::size_t i = 0; i < w.rows.size(); ++i) {
+      Row& row = w.rows[i];
+      if (row.problem || row.same_as) continue;
+      if (auto in = inserted.find(row.input.reading_id); in != inserted.end()) {
+        w.inserted.push_back(in->second);
+      } else if (auto e = earlier.find(row.input.reading_id); e != earlier.end()) {
+        if (e->second.second == row.hash) {
+          replay_ids.push_back(e->second.first);
+        } else {
+          w.problems.push_back(conflict_problem(i, row.input.reading_id));
+          row.problem = true;
+        }
+      }
+    }
+    // A repeat of a conflicting row conflicts too.
+    for (std::size_t i = 0; i < w.rows.size(); ++i) {
+      if (w.rows[i].same_as && w.rows[*w.rows[i].same_as].problem) {
+        w.problems.push_back(conflict_problem(i, w.rows[i].input.reading_id));
+      }
+    }
+  }
+  const auto replays = originals(tx, replay_ids);
+  std::vector<Id> undo;
+  std::vector<AppendOutcome> outcomes(work.size());
+  for (std::size_t b = 0; b < work.size(); ++b) {
+    BatchWork& w = work[b];
+    AppendOutcome& out = outcomes[b];
+    if (!w.problems.empty()) {
+      undo.insert(undo.end(), w.inserted.begin(), w.inserted.end());
+      std::sort(w.problems.begin(), w.problems.end(),
+                [](const RowProblem& x, const RowProblem& y) { return x.row < y.row; });
+      out.problems = std::move(w.problems);
+      continue;
+    }
+    out.readings.reserve(w.rows.size());
+    for (Row& row : w.rows) {
+      if (row.same_as) {
+        out.readings.push_back(out.readings[*row.same_as]);
+        out.replayed.push_back(true);
+      } else if (auto in = inserted.find(row.input.reading_id); in != inserted.end()) {
+        StoredReading stored;
+        static_cast<ReadingInput&>(stored) = std::move(row.input);
+        stored.id = in->second;
+        stored.battery_id = row.battery_id;
+        stored.received_at = now;
+        out.readings.push_back(std::move(stored));
+        out.replayed.push_back(false);
+      } else {
+        out.readings.push_back(replays.at(earlier.at(row.input.reading_id).first));
+        out.replayed.push_back(true);
+      }
+    }
+    out.replayed_count =
+        static_cast<std::size_t>(std::count(out.replayed.begin(), out.replayed.end(), true));
+    out.stored = out.readings.size() - out.replayed_count;
+  }
+  if (!undo.empty()) {
+    ArrayLiteral list;
+    for (Id id : undo) list.integer(id);
+    tx.exec_prepared("readings_delete_ids", list.str());
+  }
+  return outcomes;
+}
+
+}  // namespace
+
+std::unordered_map<std::string, Id> BatteryIdCache::ids(Tx& tx, const std::vector<std::string>& serials) {
+  std::unordered_map<std::string, Id> out;
+  std::unordered_set<std::string> unknown;
+  {
+    std::lock_guard lock(mutex_);
+    for (const auto& s : serials) {
+      if (out.count(s) || unknown.count(s)) continue;
+      if (auto it = known_.find(s); it != known_.end()) {
+        out.emplace(s, it->second);
+      } else {
+        unknown.insert(s);
+      }
+    }
+  }
+  if (unknown.empty()) return out;
+  ArrayLiteral missing;
+  for (const auto& s : unknown) missing.text(s);
+  const pqxx::result rows = tx.exec_prepared("battery_ids", missing.str());
+  std::lock_guard lock(mutex_);
+  if (known_.size() >= kMaxEntries) known_.clear();
+  for (const auto& row : rows) {
+    const Id id = row[1].as<Id>();
+    out.emplace(text(row[0]), id);
+    known_.emplace(text(row[0]), id);
+  }
+  return out;
+}
+
+std::vector<AppendOutcome> append_group(Tx& tx, BatteryIdCache& battery_ids,
+                                        const std::vector<std::vector<ReadingInput>>& batches,
+                                        sys_seconds now) {
+  std::vector<std::string> serials;
+  for (const auto& batch : batches)
+    for (const auto& r : batch) serials.push_back(r.serial);
+  const auto ids = battery_ids.ids(tx, serials);
+  std::vector<BatchWork> work;
+  work.reserve(batches.size());
+  for (const auto& batch : batches) work.push_back(check_batch(batch, ids));
+  std::vector<AppendOutcome> outcomes;
+  if (reading_id_in_two_batches(work)) {
+    outcomes.reserve(work.size());
+    for (auto& w : work) {
+      std::vector<BatchWork> one;
+      one.push_back(std::move(w));
+      outcomes.push_back(std::move(store_checked(tx, one, now).front()));
+    }
+  } else {
+    outcomes = store_checked(tx, work, now);
+  }
+  return outcomes;
+}
+
+std::size_t load_group(Tx& tx, BatteryIdCache& battery_ids, const std::vector<ReadingInput>& batch,
+                       sys_seconds now) {
+  std::vector<std::string> serials;
+  for (const auto& r : batch) serials.push_back(r.serial);
+  const auto ids = battery_ids.ids(tx, serials);
+  for (std::size_t from = 0; from < batch.size(); from += kLoadChunk) {
+    Columns columns;
+    std::vector<std::string> wanted;
+    for (std::size_t i = from; i < std::min(batch.size(), from + kLoadChunk); ++i) {
+      ReadingInput r = batch[i];
+      const auto id = ids.find(r.serial);
+      if (id == ids.end())
+        fail(StoreErrc::not_found, "no battery with serial '" + r.serial + "'", "serial");
+      if (r.reading_id.empty()) r.reading_id = assigned_reading_id();
+      columns.add(r, id->second, now, content_hash(r));
+      wanted.push_back(r.reading_id);
+    }
+    const auto inserted = columns.insert(tx);
+    if (inserted.size() != wanted.size()) {
+      for (const auto& id : wanted)
+        if (!inserted.count(id))
+          fail(StoreErrc::conflict, "reading_id '" + id + "' is already stored", "reading_id");
+    }
+  }
+  return batch.size();
+}
+
+}  // namespace pbfleet::storage::pg
