@@ -20,13 +20,13 @@
 // reading_id is new in two batches of one group (a client retrying while
 // its first request is still queued), the batches go one at a time so the
 // first one owns the row, as on SQLite.
-#include <openssl/rand.h>
 
 #include <algorithm>
 #include <map>
 #include <unordered_map>
 #include <unordered_set>
 
+#include "server/storage/tokens.hpp"
 #include "server/storage/pg_rows.hpp"
 #include "server/storage/pg_store_impl.hpp"
 
@@ -38,19 +38,6 @@ using std::chrono::sys_seconds;
 using Tx = pqxx::transaction_base;
 
 constexpr std::size_t kLoadChunk = 5000;  // rows per INSERT in the bulk load
-
-// A reading id for a reading the client sent without one: 96 random bits.
-std::string assigned_reading_id() {
-  unsigned char bytes[12];
-  if (RAND_bytes(bytes, sizeof bytes) != 1) fail(StoreErrc::internal, "random source failed");
-  static constexpr char kHex[] = "0123456789abcdef";
-  std::string id = "srv-";
-  for (unsigned char b : bytes) {
-    id += kHex[b >> 4];
-    id += kHex[b & 0xf];
-  }
-  return id;
-}
 
 template <class Q>
 std::optional<double> raw(const std::optional<Q>& q) {
@@ -152,7 +139,7 @@ BatchWork check_batch(const std::vector<ReadingInput>& batch,
     }
     row.battery_id = id->second;
     row.hash = content_hash(row.input);
-    if (row.input.reading_id.empty()) row.input.reading_id = assigned_reading_id();
+    if (row.input.reading_id.empty()) row.input.reading_id = new_reading_id();
     if (auto it = first.find(row.input.reading_id); it != first.end()) {
       if (w.rows[it->second].hash == row.hash) {
         row.same_as = it->second;
@@ -354,7 +341,7 @@ std::size_t load_group(Tx& tx, BatteryIdCache& battery_ids, const std::vector<Re
       const auto id = ids.find(r.serial);
       if (id == ids.end())
         fail(StoreErrc::not_found, "no battery with serial '" + r.serial + "'", "serial");
-      if (r.reading_id.empty()) r.reading_id = assigned_reading_id();
+      if (r.reading_id.empty()) r.reading_id = new_reading_id();
       columns.add(r, id->second, now, content_hash(r));
       wanted.push_back(r.reading_id);
     }

@@ -1,11 +1,11 @@
 // Readings: idempotent batch append, group commit, bulk load, queries.
-#include <openssl/rand.h>
 
 #include <algorithm>
 #include <cstring>
 #include <limits>
 #include <unordered_map>
 
+#include "server/storage/tokens.hpp"
 #include "server/storage/sqlite_rows.hpp"
 #include "server/storage/sqlite_store_impl.hpp"
 
@@ -21,19 +21,6 @@ constexpr std::string_view kInsertReading =
     " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash)"
     " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, "
     "?19) ON CONFLICT (reading_id) DO NOTHING";
-
-// A reading id for a reading the client sent without one: 96 random bits.
-std::string assigned_reading_id() {
-  unsigned char bytes[12];
-  if (RAND_bytes(bytes, sizeof bytes) != 1) fail(StoreErrc::internal, "random source failed");
-  static constexpr char kHex[] = "0123456789abcdef";
-  std::string id = "srv-";
-  for (unsigned char b : bytes) {
-    id += kHex[b >> 4];
-    id += kHex[b & 0xf];
-  }
-  return id;
-}
 
 template <class Q>
 std::optional<double> raw(const std::optional<Q>& q) {
@@ -151,7 +138,7 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
       continue;
     }
     const ContentHash hash = content_hash(input);
-    if (input.reading_id.empty()) input.reading_id = assigned_reading_id();
+    if (input.reading_id.empty()) input.reading_id = new_reading_id();
     if (auto it = seen.find(input.reading_id); it != seen.end()) {
       if (it->second.hash != hash) {
         out.problems.push_back(conflict_problem(row, input.reading_id));
@@ -249,7 +236,7 @@ StoreResult<std::size_t> SqliteStore::load_readings(const std::vector<ReadingInp
         fail(StoreErrc::not_found, "no battery with serial '" + given.serial + "'", "serial");
       }
       ReadingInput r = given;
-      if (r.reading_id.empty()) r.reading_id = assigned_reading_id();
+      if (r.reading_id.empty()) r.reading_id = new_reading_id();
       if (!st.insert_row(r, *battery_id, now, content_hash(r)))
         fail(StoreErrc::conflict, "reading_id '" + r.reading_id + "' is already stored",
              "reading_id");

@@ -9,20 +9,29 @@
 
 namespace pbfleet::storage {
 
-std::string new_raw_token() {
+namespace {
+
+// `count` random bytes from the system source as lower-case hex.
+std::string random_hex(std::size_t count) {
   std::array<unsigned char, kTokenBytes> bytes{};
-  if (RAND_bytes(bytes.data(), static_cast<int>(bytes.size())) != 1) {
-    throw std::runtime_error("the system random source failed; no token was made");
+  if (count > bytes.size() || RAND_bytes(bytes.data(), static_cast<int>(count)) != 1) {
+    throw std::runtime_error("the system random source failed; no token or id was made");
   }
   static constexpr char kHex[] = "0123456789abcdef";
   std::string out;
-  out.reserve(bytes.size() * 2);
-  for (unsigned char b : bytes) {
-    out += kHex[b >> 4];
-    out += kHex[b & 0xf];
+  out.reserve(count * 2);
+  for (std::size_t i = 0; i < count; ++i) {
+    out += kHex[bytes[i] >> 4];
+    out += kHex[bytes[i] & 0xf];
   }
   return out;
 }
+
+}  // namespace
+
+std::string new_raw_token() { return random_hex(kTokenBytes); }
+
+std::string new_reading_id() { return "srv-" + random_hex(12); }
 
 TokenHash hash_token(std::string_view raw) {
   TokenHash hash;

@@ -17,6 +17,9 @@ inline constexpr std::size_t kTokenBytes = 32;  // 256 bits
 // A fresh raw token: 64 lower-case hex digits. Throws std::runtime_error if
 // the system random source fails (never returns a weak token).
 std::string new_raw_token();
+// The id given to a reading the client sent without one: "srv-" and 96
+// random bits in hex. Throws std::runtime_error like new_raw_token.
+std::string new_reading_id();
 // SHA-256 of the raw token text.
 TokenHash hash_token(std::string_view raw);
 // Constant-time equality of two hashes.

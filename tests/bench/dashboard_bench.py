@@ -25,9 +25,10 @@ import time
 import urllib.error
 import urllib.request
 
-from selenium import webdriver
-from selenium.webdriver.chrome.service import Service
 from selenium.webdriver.common.by import By
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "browser"))
+from chromium import make_driver  # noqa: E402
 
 
 def request(base, token, method, path, body=None, content_type="application/json"):
@@ -130,14 +131,7 @@ def main():
         started = time.monotonic()
         load_fleet(base, token, args.demogen, work)
         print(f"loaded the demo fleet in {time.monotonic() - started:.1f} s", file=sys.stderr)
-        options = webdriver.ChromeOptions()
-        options.binary_location = "/usr/bin/chromium"
-        for flag in ("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-                     "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                     "--disable-dev-shm-usage", "--window-size=1280,800"):
-            options.add_argument(flag)
-        options.add_argument("--user-data-dir=" + os.path.join(work, "chromium"))
-        driver = webdriver.Chrome(service=Service("/usr/bin/chromedriver"), options=options)
+        driver = make_driver()
         driver.execute_cdp_cmd("Network.enable", {})
         driver.execute_cdp_cmd("Network.setCacheDisabled", {"cacheDisabled": True})
         sign_in = median_ms(driver, base + "/ui/sign-in", FCP, args.repeat)

@@ -22,11 +22,11 @@ import time
 import urllib.error
 import urllib.request
 
-from selenium import webdriver
-from selenium.webdriver.chrome.service import Service
 from selenium.webdriver.common.by import By
 from selenium.common.exceptions import WebDriverException
 from selenium.webdriver.support.ui import WebDriverWait
+
+from chromium import make_driver
 
 FAILURES = []
 
@@ -104,18 +104,6 @@ def seed(api):
     status, body = api.call("POST", "/v1/readings", batch)
     assert status == 201, body
     return serials
-
-
-def make_driver():
-    options = webdriver.ChromeOptions()
-    options.binary_location = "/usr/bin/chromium"
-    for flag in ("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-                 "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                 "--disable-dev-shm-usage", "--window-size=1280,800"):
-        options.add_argument(flag)
-    options.add_argument("--user-data-dir=" + tempfile.mkdtemp(prefix="pbfleet-chromium-"))
-    options.set_capability("goog:loggingPrefs", {"browser": "ALL"})
-    return webdriver.Chrome(service=Service("/usr/bin/chromedriver"), options=options)
 
 
 class Browser:
@@ -313,7 +301,7 @@ def main():
             status, made = admin.call("POST", "/v1/tokens", {"name": f"{role} browser", "role": role})
             assert status == 201, made
             tokens[role] = made["token"]
-        driver = make_driver()
+        driver = make_driver(console_log=True)
         b = Browser(driver, base, args.artifacts)
         b.sign_in(admin_token, shot="sign-in")
         check(b.d.current_url.endswith("/ui/winter"), "the admin signs in")

@@ -229,7 +229,7 @@ TEST_CASE("bad tokens at the sign-in page are throttled per address like Bearer 
 namespace pbfleet::testing {
 
 TEST_CASE("text from the database is escaped on every page it appears on") {
-  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn"});
+  LiveFleet fleet({.batteries_per_depot = 1, .extra_args = {}, .log_level = "warn", .database = {}});
   auto admin = fleet.client("admin");
   const std::string hostile = "Q<b onmouseover=alert(1)>x";  // serials may not hold '/'
   const auto made = admin.post("/v1/batteries", {{"serial", hostile}, {"chemistry", "flooded"}, {"nominal_v", 12},
