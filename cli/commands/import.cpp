@@ -79,17 +79,24 @@ int report_server_refusal(const import::SendOutcome& sent, const std::vector<int
   return client::is_data_rejection(*sent.failure.problem) ? kExitRejected : kExitFailure;
 }
 
+// Flagged readings listed line by line; a bulk import of past years can flag
+// thousands, which no one reads on a terminal: the rest are counted.
+constexpr std::size_t kMaxFlaggedLines = 20;
+
 // The readings that need attention, one line each, so the crew can act
 // before leaving the yard.
 void print_flagged(const std::vector<import::Flagged>& flagged, const import::Prepared& prepared, Context& ctx) {
   if (flagged.empty()) return;
   ctx.out() << fmt::format("{} flagged:\n", flagged.size() == 1 ? std::string("1 reading") :
                                                                    fmt::format("{} readings", flagged.size()));
-  for (const auto& x : flagged) {
+  for (std::size_t i = 0; i < flagged.size() && i < kMaxFlaggedLines; ++i) {
+    const auto& x = flagged[i];
     const auto& r = prepared.readings[x.index];
     ctx.out() << fmt::format("  row {}  {}  {}  {}\n", prepared.rows[x.index], r.serial,
                              models::wire::format_timestamp(r.taken_at), fmt::join(x.flags, "; "));
   }
+  if (flagged.size() > kMaxFlaggedLines)
+    ctx.out() << fmt::format("  ... and {} more (--json lists every one)\n", flagged.size() - kMaxFlaggedLines);
   ctx.out() << "details: pbfleet history SERIAL\n";
 }
 

@@ -123,6 +123,22 @@ TEST_CASE("readings the server flags are listed after the counts, by file row, a
                                 {"flags", {"low_soc", "cell_spread"}}});
 }
 
+TEST_CASE("a long list of flagged readings stops after 20 lines and counts the rest, and --json keeps them all") {
+  CsvFile file(round_csv(60));
+  testing::FakeServer server(flag_second);
+  testing::Terminal term;
+  REQUIRE(term.run({"import", file.path, "--chunk", "2"}, seams(server)) == 0);  // 30 chunks, 30 flagged
+  const std::string out = term.out.str();
+  CHECK(out.find("30 readings flagged:\n") != std::string::npos);
+  std::size_t lines = 0;
+  for (std::size_t at = out.find("  row "); at != std::string::npos; at = out.find("  row ", at + 1)) ++lines;
+  CHECK(lines == 20);
+  CHECK(out.find("  ... and 10 more (--json lists every one)\n") != std::string::npos);
+  testing::Terminal json_term;
+  REQUIRE(json_term.run({"import", file.path, "--chunk", "2", "--json"}, seams(server)) == 0);
+  CHECK(Json::parse(json_term.out.str())["flagged"].size() == 30);
+}
+
 TEST_CASE("on a terminal the progress bar goes to stderr, never stdout") {
   CsvFile file(round_csv(20));
   testing::FakeServer server(accept_all);
