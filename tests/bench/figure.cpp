@@ -1,12 +1,26 @@
 #include "tests/bench/figure.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
 #include <thread>
+#include <vector>
 #include <unistd.h>
 
 namespace pbfleet::bench {
+
+double median_seconds(int repeat, const std::function<void()>& f) {
+  f();
+  std::vector<double> times;
+  for (int i = 0; i < repeat; ++i) {
+    const auto start = SteadyClock::now();
+    f();
+    times.push_back(seconds_since(start));
+  }
+  std::sort(times.begin(), times.end());
+  return times[times.size() / 2];
+}
 
 double seconds_since(SteadyClock::time_point start) {
   return std::chrono::duration<double>(SteadyClock::now() - start).count();

@@ -8,6 +8,7 @@
 #pragma once
 
 #include <chrono>
+#include <functional>
 #include <optional>
 #include <string>
 
@@ -17,6 +18,8 @@ using SteadyClock = std::chrono::steady_clock;
 
 // Seconds elapsed since `start`.
 double seconds_since(SteadyClock::time_point start);
+// Median seconds of `repeat` runs of `f`, after one untimed warm-up run.
+double median_seconds(int repeat, const std::function<void()>& f);
 
 // A target on a number: the ratio (or a time) must stay at or above / below it.
 struct Target {

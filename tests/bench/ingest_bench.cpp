@@ -26,6 +26,7 @@
 #include "server/storage/store.hpp"
 #include "tests/bench/daemon.hpp"
 #include "tests/bench/figure.hpp"
+#include "tests/bench/ingest_bodies.hpp"
 #include "tests/bench/fleet_db.hpp"
 #include "tests/bench/load.hpp"
 #include "tests/bench/raw_sqlite.hpp"
@@ -68,57 +69,6 @@ Options parse(int argc, char** argv) {
   return o;
 }
 
-// A small generated fleet; `readings` gets enough of its readings.
-demogen::Fleet small_fleet(std::size_t wanted, std::vector<ReadingInput>& readings) {
-  demogen::FleetConfig config;
-  config.weeks = 260;
-  config.batteries = static_cast<int>(wanted / 200 + 20);
-  config.last_round = kLastRound;
-  auto fleet = demogen::make_fleet(config);
-  demogen::generate_readings(config, fleet, [&](const auto&, const std::vector<ReadingInput>& r) {
-    readings.insert(readings.end(), r.begin(), r.end());
-  });
-  if (readings.size() < wanted) {
-    std::fprintf(stderr, "generator gave %zu readings, %zu wanted\n", readings.size(), wanted);
-    std::exit(1);
-  }
-  readings.resize(wanted);
-  return fleet;
-}
-
-nlohmann::json reading_json(const ReadingInput& r) {
-  nlohmann::json j{{"reading_id", r.reading_id}, {"serial", r.serial},
-                   {"taken_at", models::wire::format_timestamp(r.taken_at)}};
-  if (r.ocv) j["ocv_v"] = r.ocv->value;
-  auto& cells = j["cell_sg"] = nlohmann::json::array();
-  for (const auto& sg : r.cell_sg) cells.push_back(sg.value);
-  if (r.electrolyte) j["electrolyte_temp_c"] = r.electrolyte->value.value;
-  if (r.ambient) j["ambient_temp_c"] = r.ambient->value.value;
-  if (r.rest) j["rest_h"] = r.rest->value;
-  j["logged_by"] = r.logged_by;
-  j["source"] = r.source;
-  if (!r.note.empty()) j["note"] = r.note;
-  if (r.after_charge) j["after_charge"] = true;
-  if (r.water_added) j["water_added"] = true;
-  return j;
-}
-
-// Request bodies: one reading each, or kBatch readings each.
-std::vector<std::string> bodies(const std::vector<ReadingInput>& r, std::size_t from,
-                                std::size_t count, std::size_t per_body) {
-  std::vector<std::string> out;
-  for (std::size_t i = from; i < from + count; i += per_body) {
-    if (per_body == 1) {
-      out.push_back(reading_json(r[i]).dump());
-      continue;
-    }
-    nlohmann::json list = nlohmann::json::array();
-    for (std::size_t k = i; k < std::min(from + count, i + per_body); ++k) list.push_back(reading_json(r[k]));
-    out.push_back(list.dump());
-  }
-  return out;
-}
-
 // Requests/s of `make` over the standard load; exits on any failure.
 template <class Make>
 double drive(std::uint16_t port, const std::string& token, const Options& o, std::size_t limit,
@@ -157,7 +107,7 @@ int main(int argc, char** argv) {
   arm_watchdog(std::chrono::seconds{60 + static_cast<int>(6 * o.seconds)}, kill_daemons);
   fs::create_directories(o.work);
   std::vector<ReadingInput> readings;
-  const auto fleet = small_fleet(o.single + 2 * o.batches * kBatch, readings);
+  const auto fleet = small_fleet(o.single + 2 * o.batches * kBatch, kLastRound, readings);
   const auto single_bodies = bodies(readings, 0, o.single, 1);
   const auto batch_bodies = bodies(readings, o.single, o.batches * kBatch, kBatch);
   const auto minimal_bodies =

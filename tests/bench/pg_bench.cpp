@@ -30,6 +30,7 @@
 #include "server/storage/pg_store.hpp"
 #include "tests/bench/daemon.hpp"
 #include "tests/bench/figure.hpp"
+#include "tests/bench/ingest_bodies.hpp"
 #include "tests/bench/fleet_db.hpp"
 #include "tests/bench/load.hpp"
 #include "tests/bench/raw_pg.hpp"
@@ -80,48 +81,6 @@ Options parse(int argc, char** argv) {
   return o;
 }
 
-demogen::Fleet small_fleet(std::size_t wanted, std::vector<ReadingInput>& readings) {
-  demogen::FleetConfig config;
-  config.weeks = 260;
-  config.batteries = static_cast<int>(wanted / 200 + 20);
-  config.last_round = kLastRound;
-  auto fleet = demogen::make_fleet(config);
-  demogen::generate_readings(config, fleet, [&](const auto&, const std::vector<ReadingInput>& r) {
-    readings.insert(readings.end(), r.begin(), r.end());
-  });
-  if (readings.size() < wanted) std::exit((std::fprintf(stderr, "too few readings\n"), 1));
-  readings.resize(wanted);
-  return fleet;
-}
-
-nlohmann::json reading_json(const ReadingInput& r) {
-  nlohmann::json j{{"reading_id", r.reading_id}, {"serial", r.serial},
-                   {"taken_at", models::wire::format_timestamp(r.taken_at)}};
-  if (r.ocv) j["ocv_v"] = r.ocv->value;
-  auto& cells = j["cell_sg"] = nlohmann::json::array();
-  for (const auto& sg : r.cell_sg) cells.push_back(sg.value);
-  if (r.electrolyte) j["electrolyte_temp_c"] = r.electrolyte->value.value;
-  if (r.ambient) j["ambient_temp_c"] = r.ambient->value.value;
-  if (r.rest) j["rest_h"] = r.rest->value;
-  j["logged_by"] = r.logged_by;
-  j["source"] = r.source;
-  if (!r.note.empty()) j["note"] = r.note;
-  if (r.after_charge) j["after_charge"] = true;
-  if (r.water_added) j["water_added"] = true;
-  return j;
-}
-
-std::vector<std::string> bodies(const std::vector<ReadingInput>& r, std::size_t from,
-                                std::size_t count, std::size_t per_body) {
-  std::vector<std::string> out;
-  for (std::size_t i = from; i < from + count; i += per_body) {
-    nlohmann::json list = nlohmann::json::array();
-    for (std::size_t k = i; k < std::min(from + count, i + per_body); ++k) list.push_back(reading_json(r[k]));
-    out.push_back(per_body == 1 ? list[0].dump() : list.dump());
-  }
-  return out;
-}
-
 template <class Make>
 double drive(std::uint16_t port, const std::string& token, const Options& o, std::size_t limit,
              int expect, Make make) {
@@ -153,19 +112,6 @@ std::string fresh_pg(testing::PgCluster& cluster, const std::string& name,
   return uri;
 }
 
-// Median seconds of `repeat` runs of `f`, after one untimed warm-up run.
-double median_seconds(int repeat, const std::function<void()>& f) {
-  f();
-  std::vector<double> times;
-  for (int i = 0; i < repeat; ++i) {
-    const auto start = SteadyClock::now();
-    f();
-    times.push_back(seconds_since(start));
-  }
-  std::sort(times.begin(), times.end());
-  return times[times.size() / 2];
-}
-
 double winter_seconds(storage::Store& store, int repeat) {
   analytics::ColdSpec cold;
   cold.cold_date = kLastRound + std::chrono::days{14};
@@ -177,7 +123,7 @@ double winter_seconds(storage::Store& store, int repeat) {
 
 void ingest(testing::PgCluster& cluster, const Options& o) {
   std::vector<ReadingInput> readings;
-  const auto fleet = small_fleet(o.single + o.batches * kBatch, readings);
+  const auto fleet = small_fleet(o.single + o.batches * kBatch, kLastRound, readings);
   const auto single_bodies = bodies(readings, 0, o.single, 1);
   const auto batch_bodies = bodies(readings, o.single, o.batches * kBatch, kBatch);
   std::string token;

@@ -77,19 +77,6 @@ Options parse(int argc, char** argv) {
   return o;
 }
 
-// Median seconds of `repeat` runs of `f`, after one untimed warm-up run.
-double median_seconds(int repeat, const std::function<void()>& f) {
-  f();
-  std::vector<double> times;
-  for (int i = 0; i < repeat; ++i) {
-    const auto start = SteadyClock::now();
-    f();
-    times.push_back(seconds_since(start));
-  }
-  std::sort(times.begin(), times.end());
-  return times[times.size() / 2];
-}
-
 double median_scan(int repeat, const std::function<ScanResult()>& f) {
   return median_seconds(repeat, [&] {
     if (f().rows == 0) {
