@@ -21,19 +21,6 @@ using std::chrono::sys_days;
 constexpr int kMaxProjectionDays = 366;
 constexpr double kFullSocPct = 100.0;
 
-struct Basis {
-  const ReadingPoint* reading = nullptr;
-  DerivedReading derived;
-};
-
-// Latest trusted reading, looking back from the newest.
-std::optional<Basis> latest_trusted(const WinterInput& in, const AnalyticsSettings& s) {
-  for (auto it = in.recent.rbegin(); it != in.recent.rend(); ++it) {
-    auto d = derive(*it, in.battery->spec, s);
-    if (d.trusted) return Basis{&*it, std::move(d)};
-  }
-  return std::nullopt;
-}
 
 // Daily means falling linearly from `start` on the reading day to `low` on
 // the cold date (the documented temperature assumption).
@@ -47,12 +34,12 @@ std::vector<Celsius> daily_profile(Celsius start, Celsius low, int days) {
   return temps;
 }
 
-double project(const Basis& b, const BatteryContext& battery, const ColdSpec& cold, Celsius low) {
-  const double soc = *b.derived.soc_percent;
-  const auto days = (cold.cold_date - floor<std::chrono::days>(b.reading->taken_at)).count();
+double project(const TrustedBasis& b, const BatteryContext& battery, const ColdSpec& cold, Celsius low) {
+  const double soc = b.soc_percent;
+  const auto days = (cold.cold_date - floor<std::chrono::days>(b.taken_at)).count();
   if (days <= 0) return soc;
   const int n = static_cast<int>(std::min<long long>(days, kMaxProjectionDays));
-  const auto temps = daily_profile(Celsius{b.derived.electrolyte_c}, low, n);
+  const auto temps = daily_profile(Celsius{b.electrolyte_c}, low, n);
   return models::project_soc(Percent{soc}, temps, battery.spec.chemistry).value;
 }
 
@@ -150,11 +137,11 @@ void note_staleness(WinterRisk& r, const AnalyticsSettings& s) {
   }
 }
 
-WinterRisk no_data(WinterRisk r, const WinterInput& in, const AnalyticsSettings& s) {
+WinterRisk no_data(WinterRisk r, const WinterBasis& basis, const AnalyticsSettings& s) {
   r.level = RiskLevel::no_data;
-  r.reasons.push_back(in.recent.empty()
+  r.reasons.push_back(basis.recent == 0
                           ? std::string("no readings on record")
-                          : "no trusted reading among the latest " + std::to_string(in.recent.size()) +
+                          : "no trusted reading among the latest " + std::to_string(basis.recent) +
                                 " (surface charge, unsettled OCV or no SOC)");
   note_staleness(r, s);
   r.action = "take a settled reading (rest 4 h or more) on the next round";
@@ -216,17 +203,36 @@ models::Celsius low_for(const BatteryContext& battery, const ColdSpec& cold) {
   return it != cold.depot_lows.end() ? it->second : battery.depot_design_low;
 }
 
+WinterBasis winter_basis(std::span<const ReadingPoint> recent, const models::BatterySpec& spec,
+                         const AnalyticsSettings& s) {
+  if (recent.size() > kWinterLookback) recent = recent.last(kWinterLookback);
+  WinterBasis basis;
+  basis.recent = recent.size();
+  if (!recent.empty()) basis.latest_at = recent.back().taken_at;
+  for (auto it = recent.rbegin(); it != recent.rend(); ++it) {
+    const auto d = derive(*it, spec, s);
+    if (d.trusted) {
+      basis.trusted = TrustedBasis{it->taken_at, *d.soc_percent, d.electrolyte_c};
+      break;
+    }
+  }
+  return basis;
+}
+
 WinterRisk assess_winter(const WinterInput& in, const ColdSpec& cold, std::chrono::sys_seconds now,
                          const AnalyticsSettings& s) {
-  const BatteryContext& battery = *in.battery;
+  return assess_winter(*in.battery, winter_basis(in.recent, in.battery->spec, s), cold, now, s);
+}
+
+WinterRisk assess_winter(const BatteryContext& battery, const WinterBasis& basis, const ColdSpec& cold,
+                         std::chrono::sys_seconds now, const AnalyticsSettings& s) {
   const Celsius low = low_for(battery, cold);
   WinterRisk r = base_of(battery, low);
-  if (!in.recent.empty()) r.data_age_days = days_between(in.recent.back().taken_at, now);
-  const auto basis = latest_trusted(in, s);
-  if (!basis) return no_data(std::move(r), in, s);
-  r.reading_at = basis->reading->taken_at;
-  r.soc_at_reading_percent = basis->derived.soc_percent;
-  r.projected_soc_percent = project(*basis, battery, cold, low);
+  if (basis.latest_at) r.data_age_days = days_between(*basis.latest_at, now);
+  if (!basis.trusted) return no_data(std::move(r), basis, s);
+  r.reading_at = basis.trusted->taken_at;
+  r.soc_at_reading_percent = basis.trusted->soc_percent;
+  r.projected_soc_percent = project(*basis.trusted, battery, cold, low);
   judge_cranking(battery, low, r);
   judge_freezing(battery, low, r);
   const double threshold = undercharge_threshold_pct(s, battery.spec.chemistry);
@@ -246,11 +252,21 @@ bool more_urgent(const WinterRisk& a, const WinterRisk& b) {
 
 WinterReport winter_report(std::span<const WinterInput> inputs, const ColdSpec& cold,
                            std::chrono::sys_seconds now, const AnalyticsSettings& settings) {
+  std::vector<WinterCase> cases;
+  cases.reserve(inputs.size());
+  for (const auto& in : inputs) {
+    cases.push_back({in.battery, winter_basis(in.recent, in.battery->spec, settings)});
+  }
+  return winter_report(cases, cold, now, settings);
+}
+
+WinterReport winter_report(std::span<const WinterCase> cases, const ColdSpec& cold,
+                           std::chrono::sys_seconds now, const AnalyticsSettings& settings) {
   WinterReport report;
   report.cold_date = cold.cold_date;
-  report.batteries.reserve(inputs.size());
-  for (const auto& in : inputs) {
-    if (in.battery->in_service) report.batteries.push_back(assess_winter(in, cold, now, settings));
+  report.batteries.reserve(cases.size());
+  for (const auto& c : cases) {
+    if (c.battery->in_service) report.batteries.push_back(assess_winter(*c.battery, c.basis, cold, now, settings));
   }
   std::sort(report.batteries.begin(), report.batteries.end(), more_urgent);
   report.depots = summarise(report.batteries);

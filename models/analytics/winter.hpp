@@ -47,11 +47,44 @@ struct ColdSpec {
 // The low that applies to a battery under a ColdSpec.
 models::Celsius low_for(const BatteryContext& battery, const ColdSpec& cold);
 
+// How many of a battery's newest readings the report looks back through
+// for a trusted one (a quarter of weekly rounds). The store's per-battery
+// summaries keep exactly what this look-back finds (schema 0004).
+inline constexpr std::size_t kWinterLookback = 13;
+
 // What the server hands in per battery: context plus its latest few
 // readings (ascending taken_at; the report looks back for a trusted one).
 struct WinterInput {
   const BatteryContext* battery = nullptr;        // REQUIRES: not null
   std::span<const ReadingPoint> recent;
+};
+
+// The newest trusted reading's values the judgement rests on.
+struct TrustedBasis {
+  std::chrono::sys_seconds taken_at{};
+  double soc_percent = 0.0;
+  double electrolyte_c = 25.0;                     // used for the corrections (25 if not measured)
+};
+
+// All the winter judgement needs of a battery's readings: the newest
+// reading's time, how many readings were looked at, and the newest trusted
+// one among them. Kept per battery by the store, or worked out from the
+// readings with winter_basis.
+struct WinterBasis {
+  std::optional<std::chrono::sys_seconds> latest_at;  // newest reading of any kind
+  std::size_t recent = 0;                          // readings looked at (<= kWinterLookback)
+  std::optional<TrustedBasis> trusted;             // newest trusted among them
+};
+
+// The basis from a battery's newest readings (ascending taken_at, ties in
+// storage order; at most kWinterLookback are looked at, the newest).
+WinterBasis winter_basis(std::span<const ReadingPoint> recent, const models::BatterySpec& spec,
+                         const AnalyticsSettings& settings);
+
+// One battery and its basis.
+struct WinterCase {
+  const BatteryContext* battery = nullptr;        // REQUIRES: not null
+  WinterBasis basis;
 };
 
 struct WinterRisk {
@@ -100,12 +133,19 @@ struct WinterReport {
 };
 
 // Judges one battery. `now` is the report time (data age is measured to it).
+WinterRisk assess_winter(const BatteryContext& battery, const WinterBasis& basis,
+                         const ColdSpec& cold, std::chrono::sys_seconds now,
+                         const AnalyticsSettings& settings);
+// Same, from its readings (winter_basis first).
 WinterRisk assess_winter(const WinterInput& input, const ColdSpec& cold,
                          std::chrono::sys_seconds now, const AnalyticsSettings& settings);
 
 // Judges every in-service battery, ranks them (level, then crank margin, then
 // freeze margin, then serial) and summarises per depot.
 WinterReport winter_report(std::span<const WinterInput> inputs, const ColdSpec& cold,
+                           std::chrono::sys_seconds now, const AnalyticsSettings& settings);
+// Same, from bases (the store's summaries): no reading is derived here.
+WinterReport winter_report(std::span<const WinterCase> cases, const ColdSpec& cold,
                            std::chrono::sys_seconds now, const AnalyticsSettings& settings);
 
 // Ordering used by the ranking: true when `a` is more urgent than `b`.

@@ -2,8 +2,8 @@
 // bulk load, set at a time. The rules are sqlite_readings.cpp's; the way
 // differs because every statement is a round trip to the server:
 //
-//   1. battery ids of every serial in the group: from the store's id cache
-//      (a serial's id never changes), else one query;
+//   1. the batteries of every serial in the group, one query (ids, and the
+//      specs each reading's facts are derived with: reading_facts.hpp);
 //   2. each row checked in memory (unknown serial, a reading_id repeated
 //      inside its batch, with the same or other content);
 //   3. the new rows of every batch still clean go in ONE
@@ -26,6 +26,7 @@
 #include <unordered_map>
 #include <unordered_set>
 
+#include "server/storage/reading_facts.hpp"
 #include "server/storage/tokens.hpp"
 #include "server/storage/pg_rows.hpp"
 #include "server/storage/pg_store_impl.hpp"
@@ -53,10 +54,34 @@ std::optional<std::string> unit(const std::optional<models::wire::EnteredTempera
   return std::string(t->unit == models::wire::TempUnit::f ? "F" : "C");
 }
 
+// A battery a group names: its row id and the spec its readings are
+// derived with.
+struct BatteryRef {
+  Id id = 0;
+  models::BatterySpec spec;
+};
+using BatteryRefs = std::unordered_map<std::string, BatteryRef>;
+
+// The batteries of `serials` (unknown serials are absent), one query: read
+// in the write transaction, so a spec changed by another instance is seen.
+BatteryRefs battery_refs(Tx& tx, const std::vector<std::string>& serials) {
+  std::unordered_set<std::string> wanted(serials.begin(), serials.end());
+  ArrayLiteral list;
+  for (const auto& s : wanted) list.text(s);
+  BatteryRefs out;
+  for (const auto& row : tx.exec_prepared("batteries_by_serials", list.str())) {
+    const Battery b = read_battery(row);
+    out.emplace(b.serial, BatteryRef{b.id, spec_of(b)});
+  }
+  return out;
+}
+
 // One array per readings column, in the INSERT's column order.
 class Columns {
  public:
-  void add(const ReadingInput& r, Id battery_id, sys_seconds now, const ContentHash& hash) {
+  void add(const ReadingInput& r, const BatteryRef& battery, sys_seconds now, const ContentHash& hash) {
+    const Id battery_id = battery.id;
+    const ReadingFacts facts = facts_of(battery.spec, point_of(r));
     c_[0].text(r.reading_id);
     c_[1].integer(battery_id);
     c_[2].integer(to_db(r.taken_at));
@@ -76,6 +101,8 @@ class Columns {
     c_[16].boolean(r.after_charge);
     c_[17].boolean(r.water_added);
     c_[18].text(bytea_param(hash.data(), hash.size()));
+    c_[19].number(facts.trusted_soc_pct);
+    c_[20].number(facts.trusted_temp_c);
     ++rows_;
   }
   [[nodiscard]] std::size_t rows() const { return rows_; }
@@ -88,14 +115,14 @@ class Columns {
         "readings_insert_many", c_[0].str(), c_[1].str(), c_[2].str(), c_[3].str(), c_[4].str(),
         c_[5].str(), c_[6].str(), c_[7].str(), c_[8].str(), c_[9].str(), c_[10].str(),
         c_[11].str(), c_[12].str(), c_[13].str(), c_[14].str(), c_[15].str(), c_[16].str(),
-        c_[17].str(), c_[18].str());
+        c_[17].str(), c_[18].str(), c_[19].str(), c_[20].str());
     ids.reserve(result.size());
     for (const auto& row : result) ids.emplace(text(row[1]), row[0].as<Id>());
     return ids;
   }
 
  private:
-  ArrayLiteral c_[19];
+  ArrayLiteral c_[21];
   std::size_t rows_ = 0;
 };
 
@@ -109,7 +136,7 @@ RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
 // One row of a batch after the in-memory checks.
 struct Row {
   ReadingInput input;
-  Id battery_id = 0;
+  const BatteryRef* battery = nullptr;
   ContentHash hash{};
   std::optional<std::size_t> same_as;  // an earlier row of the batch with this id and content
   bool problem = false;
@@ -122,22 +149,21 @@ struct BatchWork {
 };
 
 // Step 2: every row of one batch checked in memory.
-BatchWork check_batch(const std::vector<ReadingInput>& batch,
-                      const std::unordered_map<std::string, Id>& ids) {
+BatchWork check_batch(const std::vector<ReadingInput>& batch, const BatteryRefs& batteries) {
   BatchWork w;
   w.rows.resize(batch.size());
   std::unordered_map<std::string, std::size_t> first;  // reading_id -> row
   for (std::size_t i = 0; i < batch.size(); ++i) {
     Row& row = w.rows[i];
     row.input = batch[i];
-    const auto id = ids.find(row.input.serial);
-    if (id == ids.end()) {
+    const auto battery = batteries.find(row.input.serial);
+    if (battery == batteries.end()) {
       w.problems.push_back({i, StoreErrc::not_found, "serial",
                             "no battery with serial '" + row.input.serial + "'"});
       row.problem = true;
       continue;
     }
-    row.battery_id = id->second;
+    row.battery = &battery->second;
     row.hash = content_hash(row.input);
     if (row.input.reading_id.empty()) row.input.reading_id = new_reading_id();
     if (auto it = first.find(row.input.reading_id); it != first.end()) {
@@ -199,7 +225,7 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
   for (const BatchWork& w : work) {
     if (!w.problems.empty()) continue;
     for (const Row& row : w.rows)
-      if (!row.same_as) columns.add(row.input, row.battery_id, now, row.hash);
+      if (!row.same_as) columns.add(row.input, *row.battery, now, row.hash);
   }
   const auto inserted = columns.insert(tx);
   std::vector<std::string> missing;
@@ -253,7 +279,7 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
         StoredReading stored;
         static_cast<ReadingInput&>(stored) = std::move(row.input);
         stored.id = in->second;
-        stored.battery_id = row.battery_id;
+        stored.battery_id = row.battery->id;
         stored.received_at = now;
         out.readings.push_back(std::move(stored));
         out.replayed.push_back(false);
@@ -276,44 +302,15 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
 
 }  // namespace
 
-std::unordered_map<std::string, Id> BatteryIdCache::ids(Tx& tx, const std::vector<std::string>& serials) {
-  std::unordered_map<std::string, Id> out;
-  std::unordered_set<std::string> unknown;
-  {
-    std::lock_guard lock(mutex_);
-    for (const auto& s : serials) {
-      if (out.count(s) || unknown.count(s)) continue;
-      if (auto it = known_.find(s); it != known_.end()) {
-        out.emplace(s, it->second);
-      } else {
-        unknown.insert(s);
-      }
-    }
-  }
-  if (unknown.empty()) return out;
-  ArrayLiteral missing;
-  for (const auto& s : unknown) missing.text(s);
-  const pqxx::result rows = tx.exec_prepared("battery_ids", missing.str());
-  std::lock_guard lock(mutex_);
-  if (known_.size() >= kMaxEntries) known_.clear();
-  for (const auto& row : rows) {
-    const Id id = row[1].as<Id>();
-    out.emplace(text(row[0]), id);
-    known_.emplace(text(row[0]), id);
-  }
-  return out;
-}
-
-std::vector<AppendOutcome> append_group(Tx& tx, BatteryIdCache& battery_ids,
-                                        const std::vector<std::vector<ReadingInput>>& batches,
+std::vector<AppendOutcome> append_group(Tx& tx, const std::vector<std::vector<ReadingInput>>& batches,
                                         sys_seconds now) {
   std::vector<std::string> serials;
   for (const auto& batch : batches)
     for (const auto& r : batch) serials.push_back(r.serial);
-  const auto ids = battery_ids.ids(tx, serials);
+  const BatteryRefs batteries = battery_refs(tx, serials);
   std::vector<BatchWork> work;
   work.reserve(batches.size());
-  for (const auto& batch : batches) work.push_back(check_batch(batch, ids));
+  for (const auto& batch : batches) work.push_back(check_batch(batch, batteries));
   std::vector<AppendOutcome> outcomes;
   if (reading_id_in_two_batches(work)) {
     outcomes.reserve(work.size());
@@ -328,21 +325,20 @@ std::vector<AppendOutcome> append_group(Tx& tx, BatteryIdCache& battery_ids,
   return outcomes;
 }
 
-std::size_t load_group(Tx& tx, BatteryIdCache& battery_ids, const std::vector<ReadingInput>& batch,
-                       sys_seconds now) {
+std::size_t load_group(Tx& tx, const std::vector<ReadingInput>& batch, sys_seconds now) {
   std::vector<std::string> serials;
   for (const auto& r : batch) serials.push_back(r.serial);
-  const auto ids = battery_ids.ids(tx, serials);
+  const BatteryRefs batteries = battery_refs(tx, serials);
   for (std::size_t from = 0; from < batch.size(); from += kLoadChunk) {
     Columns columns;
     std::vector<std::string> wanted;
     for (std::size_t i = from; i < std::min(batch.size(), from + kLoadChunk); ++i) {
       ReadingInput r = batch[i];
-      const auto id = ids.find(r.serial);
-      if (id == ids.end())
+      const auto battery = batteries.find(r.serial);
+      if (battery == batteries.end())
         fail(StoreErrc::not_found, "no battery with serial '" + r.serial + "'", "serial");
       if (r.reading_id.empty()) r.reading_id = new_reading_id();
-      columns.add(r, id->second, now, content_hash(r));
+      columns.add(r, battery->second, now, content_hash(r));
       wanted.push_back(r.reading_id);
     }
     const auto inserted = columns.insert(tx);

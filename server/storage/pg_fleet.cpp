@@ -244,7 +244,9 @@ StoreResult<Battery> PgStore::update_battery(const Battery& b) {
         b.serial, std::string(models::to_string(b.chemistry)), b.nominal_v.value, b.cells,
         b.rated_cca_a.value, b.reserve_capacity_min, b.capacity_ah, raw(b.full_charge_sg),
         to_db(b.installed_on));
-    return battery_by_serial(tx, b.serial);
+    Battery updated = battery_by_serial(tx, b.serial);
+    refresh_battery_facts(tx, updated);  // its readings were derived with the old spec
+    return updated;
   });
 }
 

@@ -32,17 +32,17 @@ std::vector<StoredReading> collect(const pqxx::result& rows) {
 
 StoreResult<AppendOutcome> PgStore::append_readings(const std::vector<ReadingInput>& batch,
                                                     sys_seconds now) {
-  return write([&](pqxx::transaction_base& tx) { return std::move(append_group(tx, battery_ids_, {batch}, now).front()); });
+  return write([&](pqxx::transaction_base& tx) { return std::move(append_group(tx, {batch}, now).front()); });
 }
 
 StoreResult<std::vector<AppendOutcome>> PgStore::append_reading_batches(
     const std::vector<std::vector<ReadingInput>>& batches, sys_seconds now) {
-  return write([&](pqxx::transaction_base& tx) { return append_group(tx, battery_ids_, batches, now); });
+  return write([&](pqxx::transaction_base& tx) { return append_group(tx, batches, now); });
 }
 
 StoreResult<std::size_t> PgStore::load_readings(const std::vector<ReadingInput>& batch,
                                                 sys_seconds now) {
-  return write([&](pqxx::transaction_base& tx) { return load_group(tx, battery_ids_, batch, now); });
+  return write([&](pqxx::transaction_base& tx) { return load_group(tx, batch, now); });
 }
 
 StoreResult<std::vector<StoredReading>> PgStore::readings_for(std::string_view serial,

@@ -18,16 +18,16 @@ const std::string& begin_write_sql() {
 }
 
 void prepare_statements(pqxx::connection& c) {
-  c.prepare("battery_ids", "SELECT serial, id FROM batteries WHERE serial = ANY($1::text[])");
+  c.prepare("batteries_by_serials", std::string(kBatterySelect) + " WHERE b.serial = ANY($1::text[])");
   c.prepare("battery_by_serial", std::string(kBatterySelect) + " WHERE b.serial = $1");
   c.prepare("readings_insert_many",
             "WITH ins AS (INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
             " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h,"
             " load_test_a, load_test_end_v, logged_by, source, note, after_charge, water_added,"
-            " content_hash) SELECT * FROM unnest($1::text[], $2::bigint[], $3::bigint[],"
-            " $4::bigint[], $5::float8[], $6::text[], $7::float8[], $8::text[], $9::float8[],"
+            " content_hash, trusted_soc_pct, trusted_temp_c) SELECT * FROM unnest($1::text[], $2::bigint[],"
+            " $3::bigint[], $4::bigint[], $5::float8[], $6::text[], $7::float8[], $8::text[], $9::float8[],"
             " $10::text[], $11::float8[], $12::float8[], $13::float8[], $14::text[], $15::text[],"
-            " $16::text[], $17::bool[], $18::bool[], $19::bytea[])"
+            " $16::text[], $17::bool[], $18::bool[], $19::bytea[], $20::float8[], $21::float8[])"
             " ON CONFLICT (reading_id) DO NOTHING RETURNING id, reading_id),"
             " counted AS (UPDATE counters SET value = value + (SELECT count(*) FROM ins)"
             " WHERE name = 'readings') SELECT id, reading_id FROM ins");
@@ -64,6 +64,7 @@ PgStore::PgStore(std::string conninfo, PgOptions options)
   pqxx::connection& c = writer();
   migrate(c, embedded_pg_migrations(),
           std::chrono::time_point_cast<std::chrono::seconds>(std::chrono::system_clock::now()));
+  refresh_summaries(c);
 }
 
 PgStore::Connection PgStore::open_connection() {

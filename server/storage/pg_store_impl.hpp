@@ -30,22 +30,6 @@ inline constexpr std::int64_t kMigrateLockKey = 0x7062666c74'02;  // schema migr
 // round trip (pg_store.cpp).
 const std::string& begin_write_sql();
 
-// Battery ids by serial, kept for the life of the store: a serial's id never
-// changes and batteries are never deleted, so an entry cannot go stale. It
-// spares each group commit the look-up of batteries it has seen (pg_append.cpp).
-class BatteryIdCache {
- public:
-  // Ids of `serials`, from memory where known, else one query (unknown
-  // serials are absent from the answer).
-  std::unordered_map<std::string, Id> ids(pqxx::transaction_base& tx,
-                                          const std::vector<std::string>& serials);
-
- private:
-  static constexpr std::size_t kMaxEntries = 1'000'000;
-  std::mutex mutex_;
-  std::unordered_map<std::string, Id> known_;  // GUARDED_BY(mutex_)
-};
-
 class PgStore final : public Store {
  public:
   // Connects the writer, checks its settings, migrates. Throws PgError.
@@ -93,6 +77,8 @@ class PgStore final : public Store {
   StoreResult<std::vector<BatteryReadings>> latest_settled(const BatteryFilter& filter,
                                                            models::Hours min_rest) override;
   StoreResult<std::int64_t> readings_count() override;
+  StoreResult<Done> visit_summaries(const BatteryFilter& filter, const SummaryVisitor& visit) override;
+  StoreResult<std::int64_t> data_version() override;
 
   StoreResult<ApiToken> create_token(std::string_view name, Role role, std::optional<Id> depot_id,
                                      const TokenHash& hash, std::chrono::sys_seconds at,
@@ -220,7 +206,6 @@ class PgStore final : public Store {
   std::mutex battery_cache_mutex_;
   std::unordered_map<std::string, CachedBattery> battery_cache_;  // GUARDED_BY(battery_cache_mutex_)
 
-  BatteryIdCache battery_ids_;
 
   std::mutex pool_mutex_;
   std::condition_variable pool_free_;
@@ -233,12 +218,19 @@ void prepare_statements(pqxx::connection& c);
 
 // Storing readings set at a time (pg_append.cpp), inside a write transaction.
 // One outcome per batch, as Store::append_reading_batches promises.
-std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx, BatteryIdCache& battery_ids,
+std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx,
                                         const std::vector<std::vector<models::wire::ReadingInput>>& batches,
                                         std::chrono::sys_seconds now);
 // Store::load_readings' body: throws PgError (not_found, conflict).
-std::size_t load_group(pqxx::transaction_base& tx, BatteryIdCache& battery_ids,
+std::size_t load_group(pqxx::transaction_base& tx,
                        const std::vector<models::wire::ReadingInput>& batch, std::chrono::sys_seconds now);
+
+// Summaries (pg_summaries.cpp). Works the readings' facts and the
+// summaries out again when the database was summarised under other derive
+// rules; run by the instance that holds the migration lock.
+void refresh_summaries(pqxx::connection& c);
+// The same for one battery, after its spec changed.
+void refresh_battery_facts(pqxx::transaction_base& tx, const Battery& battery);
 
 // Shared query helpers (pg_fleet.cpp).
 // The battery row for a serial; throws PgError(not_found, field "serial").

@@ -256,7 +256,9 @@ StoreResult<Battery> SqliteStore::update_battery(const Battery& b) {
     s.bind(1, b.serial);
     bind_battery_fields(s, b);
     s.run();
-    return battery_by_serial(db, b.serial);
+    Battery updated = battery_by_serial(db, b.serial);
+    refresh_battery_facts(db, updated);  // its readings were derived with the old spec
+    return updated;
   });
 }
 

@@ -5,6 +5,7 @@
 #include <limits>
 #include <unordered_map>
 
+#include "server/storage/reading_facts.hpp"
 #include "server/storage/tokens.hpp"
 #include "server/storage/sqlite_rows.hpp"
 #include "server/storage/sqlite_store_impl.hpp"
@@ -18,9 +19,10 @@ using std::chrono::sys_seconds;
 constexpr std::string_view kInsertReading =
     "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
     " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h, load_test_a,"
-    " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash)"
+    " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash,"
+    " trusted_soc_pct, trusted_temp_c)"
     " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, "
-    "?19) ON CONFLICT (reading_id) DO NOTHING";
+    "?19, ?20, ?21) ON CONFLICT (reading_id) DO NOTHING";
 
 template <class Q>
 std::optional<double> raw(const std::optional<Q>& q) {
@@ -33,32 +35,42 @@ void bind_temperature(Statement& s, int index,
   s.bind(index, t->value.value).bind(index + 1, t->unit == models::wire::TempUnit::f ? "F" : "C");
 }
 
+// A battery a batch names: its row id and the spec its readings are
+// derived with.
+struct BatteryRef {
+  Id id = 0;
+  models::BatterySpec spec;
+};
+
 // The prepared statements of one write transaction, reused for every row.
 struct ReadingStatements {
   explicit ReadingStatements(Db& db)
       : db(db),
-        battery(db.prepare("SELECT id FROM batteries WHERE serial = ?1")),
         existing(db.prepare("SELECT id, content_hash FROM readings WHERE reading_id = ?1")),
         insert(db.prepare(kInsertReading)),
         original(db.prepare(std::string(kReadingSelect) + " WHERE r.id = ?1")) {}
 
-  // Battery id for a serial, cached for the transaction; nullopt if unknown.
-  std::optional<Id> battery_id(const std::string& serial) {
-    if (auto it = battery_ids.find(serial); it != battery_ids.end()) return it->second;
-    battery.reset();
-    std::optional<Id> id;
-    if (battery.bind(1, serial).step()) id = battery.int_at(0);
-    battery.reset();
-    if (id) battery_ids.emplace(serial, *id);
-    return id;
+  // The battery of a serial, cached for the transaction; nullopt if unknown.
+  const BatteryRef* battery(const std::string& serial) {
+    if (auto it = batteries.find(serial); it != batteries.end()) return &it->second;
+    try {
+      const Battery b = battery_by_serial(db, serial);
+      return &batteries.emplace(serial, BatteryRef{b.id, spec_of(b)}).first->second;
+    } catch (const DbError& e) {
+      if (e.error().code == StoreErrc::not_found) return nullptr;
+      throw;
+    }
   }
 
-  // Inserts the row; false (and nothing written) when its reading_id is
-  // stored already, so a new reading costs one index probe, not two.
-  bool insert_row(const ReadingInput& r, Id battery_id, sys_seconds now, const ContentHash& hash) {
+  // Inserts the row with its derived facts (reading_facts.hpp; the
+  // summary triggers read them); false (and nothing written) when its
+  // reading_id is stored already, so a new reading costs one index probe.
+  bool insert_row(const ReadingInput& r, const BatteryRef& battery, sys_seconds now,
+                  const ContentHash& hash) {
+    const ReadingFacts facts = facts_of(battery.spec, point_of(r));
     Statement& s = insert;
     s.reset();
-    s.bind(1, r.reading_id).bind(2, battery_id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
+    s.bind(1, r.reading_id).bind(2, battery.id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
     s.bind(5, raw(r.ocv)).bind(6, encode_cell_sg(r.cell_sg));
     bind_temperature(s, 7, r.electrolyte);
     bind_temperature(s, 9, r.ambient);
@@ -66,6 +78,7 @@ struct ReadingStatements {
     s.bind(14, r.logged_by).bind(15, r.source).bind(16, r.note);
     s.bind(17, r.after_charge ? 1 : 0).bind(18, r.water_added ? 1 : 0);
     s.bind_blob(19, hash.data(), hash.size());
+    s.bind(20, facts.trusted_soc_pct).bind(21, facts.trusted_temp_c);
     s.run();
     return db.changes() == 1;
   }
@@ -79,11 +92,10 @@ struct ReadingStatements {
   }
 
   Db& db;
-  Statement battery;
   Statement existing;
   Statement insert;
   Statement original;
-  std::unordered_map<std::string, Id> battery_ids;
+  std::unordered_map<std::string, BatteryRef> batteries;
 };
 
 // A reading already stored under a reading_id: its row id and content hash.
@@ -131,8 +143,8 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
   seen.reserve(batch.size());
   for (std::size_t row = 0; row < batch.size(); ++row) {
     ReadingInput input = batch[row];
-    const auto battery_id = st.battery_id(input.serial);
-    if (!battery_id) {
+    const BatteryRef* battery = st.battery(input.serial);
+    if (!battery) {
       out.problems.push_back(
           {row, StoreErrc::not_found, "serial", "no battery with serial '" + input.serial + "'"});
       continue;
@@ -151,11 +163,11 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
     // A clean batch so far inserts at once; an existing reading_id makes
     // the insert a no-op and falls through to the replay check. Once the
     // batch has problems it will be undone, so rows are only checked.
-    if (out.problems.empty() && st.insert_row(input, *battery_id, now, hash)) {
+    if (out.problems.empty() && st.insert_row(input, *battery, now, hash)) {
       StoredReading stored;
       static_cast<ReadingInput&>(stored) = std::move(input);
       stored.id = db.last_insert_id();
-      stored.battery_id = *battery_id;
+      stored.battery_id = battery->id;
       stored.received_at = now;
       seen.emplace(stored.reading_id, SeenInBatch{out.readings.size(), hash});
       out.readings.push_back(std::move(stored));
@@ -231,13 +243,13 @@ StoreResult<std::size_t> SqliteStore::load_readings(const std::vector<ReadingInp
   return write([&](Db& db) {
     ReadingStatements st(db);
     for (const ReadingInput& given : batch) {
-      const auto battery_id = st.battery_id(given.serial);
-      if (!battery_id) {
+      const BatteryRef* battery = st.battery(given.serial);
+      if (!battery) {
         fail(StoreErrc::not_found, "no battery with serial '" + given.serial + "'", "serial");
       }
       ReadingInput r = given;
       if (r.reading_id.empty()) r.reading_id = new_reading_id();
-      if (!st.insert_row(r, *battery_id, now, content_hash(r)))
+      if (!st.insert_row(r, *battery, now, content_hash(r)))
         fail(StoreErrc::conflict, "reading_id '" + r.reading_id + "' is already stored",
              "reading_id");
     }

@@ -88,6 +88,7 @@ SqliteStore::SqliteStore(SqliteOptions options) : options_(std::move(options)) {
   }
   migrate(*writer_, embedded_migrations(),
           std::chrono::time_point_cast<std::chrono::seconds>(std::chrono::system_clock::now()));
+  refresh_summaries();
 }
 
 SqliteStore::~SqliteStore() {

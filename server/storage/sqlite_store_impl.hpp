@@ -67,6 +67,8 @@ class SqliteStore final : public Store {
   StoreResult<std::vector<BatteryReadings>> latest_settled(const BatteryFilter& filter,
                                                            models::Hours min_rest) override;
   StoreResult<std::int64_t> readings_count() override;
+  StoreResult<Done> visit_summaries(const BatteryFilter& filter, const SummaryVisitor& visit) override;
+  StoreResult<std::int64_t> data_version() override;
 
   StoreResult<ApiToken> create_token(std::string_view name, Role role, std::optional<Id> depot_id,
                                      const TokenHash& hash, std::chrono::sys_seconds at,
@@ -98,6 +100,10 @@ class SqliteStore final : public Store {
     SqliteStore& store_;
     std::unique_ptr<Db> db_;
   };
+
+  // Works the readings' facts and the summaries out again when the
+  // database was summarised under other derive rules (sqlite_summaries.cpp).
+  void refresh_summaries();
 
   std::unique_ptr<Db> open_reader();
   Lease lease_reader();
@@ -172,5 +178,8 @@ class SqliteStore final : public Store {
 Battery battery_by_serial(Db& db, std::string_view serial);
 // Batteries matching a filter, in id order (reports; no paging).
 std::vector<Battery> batteries_matching(Db& db, const BatteryFilter& filter);
+// Works one battery's reading facts and summary out again (after its spec
+// changed; sqlite_summaries.cpp).
+void refresh_battery_facts(Db& db, const Battery& battery);
 
 }  // namespace pbfleet::storage::sqlite

@@ -26,6 +26,7 @@
 
 #include "models/wire/reading.hpp"
 #include "server/storage/domain.hpp"
+#include "server/storage/reading_facts.hpp"
 
 namespace pbfleet::storage {
 
@@ -139,6 +140,9 @@ struct BatteryReadings {
 using MeasurementVisitor =
     std::function<void(const Battery& battery, std::span<const ReadingMeasurement> newest_first)>;
 
+// One battery's summary (reading_facts.hpp), valid during the call only.
+using SummaryVisitor = std::function<void(const Battery& battery, const BatterySummary& summary)>;
+
 // ---- operations -------------------------------------------------------------
 
 struct DurabilitySettings {
@@ -237,6 +241,16 @@ class Store {
                                                                    models::Hours min_rest) = 0;
   // Readings stored in all (kept as a counter, O(1)).
   virtual StoreResult<std::int64_t> readings_count() = 0;
+  // Each matching battery's summary (what a look-back over its newest
+  // analytics::kWinterLookback readings finds; kept as readings are
+  // stored), in battery id order, one read snapshot: the winter report
+  // reads one row per battery. `visit` must not call the store.
+  virtual StoreResult<Done> visit_summaries(const BatteryFilter& filter,
+                                            const SummaryVisitor& visit) = 0;
+  // Moves on with every reading stored and every change to depots,
+  // vehicles or batteries, in every process sharing the database (O(1)):
+  // equal versions mean equal report inputs (the report cache's key).
+  virtual StoreResult<std::int64_t> data_version() = 0;
 
   // API tokens. Only the hash is stored. `expires_at` (nullopt: never)
   // must lie after `at` (invalid, field "expires_at", otherwise).

@@ -81,14 +81,20 @@ inline Battery make_battery(std::string serial, std::optional<Id> vehicle_id = s
 struct SqliteBackend {
   static constexpr bool kPostgres = false;
   static std::unique_ptr<Store> open(const TempDir& dir) { return open_store(dir.file("fleet.db")); }
+  // The same database again (a restart).
+  static std::unique_ptr<Store> reopen(const TempDir& dir) { return open(dir); }
 };
 
 struct PostgresBackend {
   static constexpr bool kPostgres = true;
   // A fresh database in this process's cluster.
   static std::unique_ptr<Store> open(const TempDir&) {
-    return open_uri(pbfleet::testing::shared_pg_cluster().fresh_database());
+    last_uri = pbfleet::testing::shared_pg_cluster().fresh_database();
+    return open_uri(last_uri);
   }
+  // The database the last open() made, again (a restart).
+  static std::unique_ptr<Store> reopen(const TempDir&) { return open_uri(last_uri); }
+  static inline std::string last_uri;
   static std::unique_ptr<Store> open_uri(const std::string& uri) {
     auto store = open_postgres_store(uri);
     REQUIRE_MESSAGE(store.ok(), (store.ok() ? "" : store.error().detail));

@@ -2,43 +2,6 @@
 
 namespace pbfleet::api {
 
-models::BatterySpec spec_of(const storage::Battery& b) {
-  models::BatterySpec spec = models::default_spec(b.chemistry, b.cells);
-  if (b.full_charge_sg) spec.full_charge_sg = *b.full_charge_sg;
-  spec.rated_cca = b.rated_cca_a;
-  spec.reserve_capacity_min = b.reserve_capacity_min;
-  spec.capacity_ah = b.capacity_ah;
-  return spec;
-}
-
-namespace {
-
-// The fields both reading shapes share; the electrolyte in Celsius given.
-template <class Reading>
-analytics::ReadingPoint point_with(const Reading& r, std::optional<double> electrolyte_c) {
-  analytics::ReadingPoint p;
-  p.taken_at = r.taken_at;
-  if (r.ocv) p.ocv_v = r.ocv->value;
-  if (electrolyte_c) p.electrolyte_c = *electrolyte_c;
-  if (r.rest) p.rest_h = r.rest->value;
-  if (r.load_test_current) p.load_test_a = r.load_test_current->value;
-  if (r.load_test_end) p.load_test_end_v = r.load_test_end->value;
-  p.cells = analytics::CellSgs(r.cell_sg);
-  p.after_charge = r.after_charge;
-  p.water_added = r.water_added;
-  return p;
-}
-
-}  // namespace
-
-analytics::ReadingPoint point_of(const models::wire::ReadingInput& r) {
-  return point_with(r, r.electrolyte ? std::optional<double>(r.electrolyte->value.value) : std::nullopt);
-}
-
-analytics::ReadingPoint point_of(const storage::ReadingMeasurement& r) {
-  return point_with(r, r.electrolyte ? std::optional<double>(r.electrolyte->value) : std::nullopt);
-}
-
 void points_ascending(std::span<const storage::ReadingMeasurement> newest_first,
                       std::vector<analytics::ReadingPoint>& points) {
   points.clear();

@@ -7,15 +7,14 @@
 
 #include "models/analytics/history.hpp"
 #include "server/storage/domain.hpp"
+#include "server/storage/reading_facts.hpp"
 
 namespace pbfleet::api {
 
-// The model spec of a stored battery: chemistry defaults, then its own
-// cell count, full-charge SG and ratings.
-models::BatterySpec spec_of(const storage::Battery& battery);
-// A reading as a compact analytics point (Celsius, raw SG per cell).
-analytics::ReadingPoint point_of(const models::wire::ReadingInput& reading);
-analytics::ReadingPoint point_of(const storage::ReadingMeasurement& reading);
+// spec_of and point_of live with the store, which derives each reading's
+// facts as it stores it (reading_facts.hpp).
+using storage::point_of;
+using storage::spec_of;
 // Points of readings given newest first, returned oldest first.
 std::vector<analytics::ReadingPoint> points_ascending(
     const std::vector<storage::StoredReading>& newest_first);

@@ -33,17 +33,22 @@ storage::StoreResult<storage::Done> each_history(storage::Store& store,
 storage::StoreResult<analytics::WinterReport> build_winter_report(
     storage::Store& store, std::optional<storage::Id> depot, const analytics::ColdSpec& cold,
     std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings) {
+  auto index = load_fleet_index(store);
+  if (!index) return index.error();
+  storage::BatteryFilter filter{depot, storage::BatteryStatus::in_service, std::nullopt};
+  // Contexts first, then the cases pointing into them (no reallocation after).
   std::vector<analytics::BatteryContext> contexts;
-  std::vector<std::vector<analytics::ReadingPoint>> points;
-  auto done = each_history(store, depot, kWinterLookback, [&](const analytics::BatteryHistory& h) {
-    contexts.push_back(h.battery);
-    points.push_back(h.readings);
-  });
+  std::vector<analytics::WinterBasis> bases;
+  auto done = store.visit_summaries(
+      filter, [&](const storage::Battery& b, const storage::BatterySummary& summary) {
+        contexts.push_back(context_of(b, *index));
+        bases.push_back(summary);
+      });
   if (!done) return done.error();
-  std::vector<analytics::WinterInput> inputs;
-  inputs.reserve(contexts.size());
-  for (std::size_t i = 0; i < contexts.size(); ++i) inputs.push_back({&contexts[i], points[i]});
-  return analytics::winter_report(inputs, cold, now, settings);
+  std::vector<analytics::WinterCase> cases;
+  cases.reserve(contexts.size());
+  for (std::size_t i = 0; i < contexts.size(); ++i) cases.push_back({&contexts[i], bases[i]});
+  return analytics::winter_report(cases, cold, now, settings);
 }
 
 storage::StoreResult<std::vector<analytics::SulfationAssessment>> build_sulfation_report(

@@ -2,10 +2,11 @@
 // histories for the winter report), build battery contexts, run the
 // analytics.
 //
-// Look-back per battery: winter takes the last kWinterLookback readings (the
-// report searches them for the latest trusted one); sulfation and
-// replacement take the last kTrendLookback (five years of weekly rounds);
-// overdue takes only the latest.
+// Look-back per battery: winter reads the store's per-battery summaries,
+// which hold what a look-back over the last kWinterLookback readings finds
+// (the latest trusted one); sulfation and replacement take the last
+// kTrendLookback (five years of weekly rounds); overdue takes only the
+// latest.
 #pragma once
 
 #include <optional>
@@ -19,7 +20,7 @@
 
 namespace pbfleet::api {
 
-inline constexpr std::size_t kWinterLookback = 13;      // a quarter of weekly rounds
+inline constexpr std::size_t kWinterLookback = analytics::kWinterLookback;
 inline constexpr std::size_t kTrendLookback = 5 * 52;   // five years of weekly rounds
 
 storage::StoreResult<analytics::WinterReport> build_winter_report(

@@ -1,0 +1,56 @@
+// What the store keeps of each reading's derivation, and of each battery's
+// newest readings, so the winter report reads one summary row per battery
+// instead of deriving its recent readings on every request.
+//
+// Readings stay as entered. Beside them the store keeps two derived
+// columns per reading (the SOC and electrolyte temperature of a trusted
+// reading, NULL otherwise) and, per battery, the summary a look-back of
+// analytics::kWinterLookback readings would find (schema 0004). Both are
+// worked out by the models (analytics::derive) with the default settings;
+// `facts_version()` names that derivation. When a binary's version differs
+// from the one the database was summarised with, the store works the
+// columns and summaries out again from the raw readings when it opens.
+#pragma once
+
+#include <optional>
+#include <string>
+
+#include "models/analytics/history.hpp"
+#include "models/analytics/winter.hpp"
+#include "models/wire/reading.hpp"
+#include "server/storage/domain.hpp"
+
+namespace pbfleet::storage {
+
+// The model spec of a stored battery: chemistry defaults, then its own
+// cell count, full-charge SG and ratings.
+models::BatterySpec spec_of(const Battery& battery);
+// A reading as a compact analytics point (Celsius, raw SG per cell).
+analytics::ReadingPoint point_of(const models::wire::ReadingInput& reading);
+analytics::ReadingPoint point_of(const ReadingMeasurement& reading);
+
+// The derived columns of one reading: both set when the reading is trusted
+// (analytics::DerivedReading::trusted), both empty otherwise.
+struct ReadingFacts {
+  std::optional<double> trusted_soc_pct;
+  std::optional<double> trusted_temp_c;  // electrolyte temperature used (25 if not measured)
+};
+ReadingFacts facts_of(const models::BatterySpec& spec, const analytics::ReadingPoint& reading);
+
+// Names the derivation behind the facts: the derive rules' version and the
+// settings they use. Stored with the summaries; a change recomputes them.
+std::string facts_version();
+
+// One battery's summary: what winter_basis finds among its newest
+// analytics::kWinterLookback readings.
+using BatterySummary = analytics::WinterBasis;
+
+// The summary from a battery's newest readings' facts, newest first (ties:
+// the later stored first); only the first kWinterLookback are looked at.
+struct FactsRow {
+  std::chrono::sys_seconds taken_at{};
+  ReadingFacts facts;
+};
+BatterySummary summary_of(std::span<const FactsRow> newest_first);
+
+}  // namespace pbfleet::storage
