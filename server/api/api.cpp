@@ -17,6 +17,7 @@ struct Api::Impl {
   Metrics metrics;
   Authenticator auth;
   ReadingWriter writer;
+  ReportCache reports;
   Context context;
   Pages* pages = nullptr;
 
@@ -24,7 +25,7 @@ struct Api::Impl {
       : options(std::move(o)),
         auth(store, clock, options.auth),
         writer(store, clock, options.writer),
-        context{store, clock, metrics, auth, writer, options} {}
+        context{store, clock, metrics, auth, writer, options, reports} {}
 };
 
 const std::string& Call::param(const std::string& name) const {

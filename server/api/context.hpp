@@ -11,6 +11,7 @@
 #include "server/api/metrics.hpp"
 #include "server/api/request_util.hpp"
 #include "server/api/services/reading_writer.hpp"
+#include "server/api/services/report_cache.hpp"
 #include "server/http/message.hpp"
 #include "server/storage/store.hpp"
 
@@ -30,6 +31,7 @@ struct Context {
   Authenticator& auth;
   ReadingWriter& writer;
   const ApiOptions& options;
+  ReportCache& reports;  // built reports and their rendered bodies
 };
 
 // One request as a handler sees it.

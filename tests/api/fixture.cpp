@@ -81,6 +81,9 @@ void ApiFixture::seed() {
   auto scoped = mint_token(*store_, "crew harbour", storage::Role::crew, depots_["Harbour"]);
   tokens_["crew_harbour"] = scoped->raw;
   token_ids_["crew_harbour"] = scoped->token.id;
+  auto manager = mint_token(*store_, "manager harbour", storage::Role::manager, depots_["Harbour"]);
+  tokens_["manager_harbour"] = manager->raw;
+  token_ids_["manager_harbour"] = manager->token.id;
 }
 
 http::Response ApiFixture::call(const std::string& method, const std::string& target,

@@ -33,7 +33,7 @@ class ApiFixture {
   ~ApiFixture();
 
   // One request through Api::handle. `who` names a token ("admin", "crew",
-  // "technician", "manager", "crew_harbour") or is empty for none.
+  // "technician", "manager", "crew_harbour", "manager_harbour") or is empty for none.
   http::Response call(const std::string& method, const std::string& target,
                       const std::string& who = "admin", const std::string& body = {},
                       const std::string& content_type = "application/json");

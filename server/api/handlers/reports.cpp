@@ -35,6 +35,25 @@ bool report_depot(const Call& call, std::optional<storage::Id>& depot,
   return errors.empty();
 }
 
+// The report's body in the format asked for, rendered once per data
+// version and kept beside the report (report_cache.hpp). `report()` gives
+// the cached report, `json` and `csv` render it.
+template <class Report, class Json, class Csv>
+http::Response answer(const Call& call, const std::string& key, Report&& report, Json&& json, Csv&& csv) {
+  const bool as_csv = wants_csv(call.request);
+  auto version = call.ctx.store.data_version();
+  if (!version) return store_problem(version.error());
+  auto body = call.ctx.reports.get<std::string>(
+      key + (as_csv ? "|csv" : "|json"), *version, call.ctx.clock.now(),
+      [&]() -> storage::StoreResult<std::string> {
+        auto built = report();
+        if (!built) return built.error();
+        return as_csv ? std::string(csv(**built)) : std::string(json(**built));
+      });
+  if (!body) return store_problem(body.error());
+  return as_csv ? csv_response(**body) : json_text_response(200, **body);
+}
+
 http::Response bad_query(const std::vector<ProblemField>& errors) {
   return problem(ProblemKind::bad_query, "bad report query", errors);
 }
@@ -68,30 +87,33 @@ http::Response winter_report(const Call& call) {
   analytics::ColdSpec cold;
   std::vector<ProblemField> errors;
   if (!report_depot(call, depot, errors) || !read_cold(call, cold, errors)) return bad_query(errors);
-  auto report = build_winter_report(call.ctx.store, depot, cold, call.ctx.clock.now(), {});
-  if (!report) return store_problem(report.error());
-  if (wants_csv(call.request)) return csv_response(winter_csv(*report));
-  return json_text_response(200, winter_json(*report));
+  return answer(
+      call, winter_key(depot, cold),
+      [&] { return cached_winter_report(call.ctx.reports, call.ctx.store, depot, cold, call.ctx.clock.now()); },
+      [](const analytics::WinterReport& r) { return winter_json(r); },
+      [](const analytics::WinterReport& r) { return winter_csv(r); });
 }
 
 http::Response sulfation_report(const Call& call) {
   std::optional<storage::Id> depot;
   std::vector<ProblemField> errors;
   if (!report_depot(call, depot, errors)) return bad_query(errors);
-  auto report = build_sulfation_report(call.ctx.store, depot, call.ctx.clock.now(), {});
-  if (!report) return store_problem(report.error());
-  if (wants_csv(call.request)) return csv_response(sulfation_csv(*report));
-  return json_text_response(200, sulfation_json(*report));
+  using Report = std::vector<analytics::SulfationAssessment>;
+  return answer(
+      call, trend_key("sulfation", depot),
+      [&] { return cached_sulfation_report(call.ctx.reports, call.ctx.store, depot, call.ctx.clock.now()); },
+      [](const Report& r) { return sulfation_json(r); }, [](const Report& r) { return sulfation_csv(r); });
 }
 
 http::Response replacement_report(const Call& call) {
   std::optional<storage::Id> depot;
   std::vector<ProblemField> errors;
   if (!report_depot(call, depot, errors)) return bad_query(errors);
-  auto report = build_replacement_report(call.ctx.store, depot, call.ctx.clock.now(), {});
-  if (!report) return store_problem(report.error());
-  if (wants_csv(call.request)) return csv_response(replacement_csv(*report));
-  return json_text_response(200, replacement_json(*report));
+  using Report = std::vector<analytics::ReplacementForecast>;
+  return answer(
+      call, trend_key("replacements", depot),
+      [&] { return cached_replacement_report(call.ctx.reports, call.ctx.store, depot, call.ctx.clock.now()); },
+      [](const Report& r) { return replacement_json(r); }, [](const Report& r) { return replacement_csv(r); });
 }
 
 http::Response overdue_report(const Call& call) {
@@ -107,10 +129,11 @@ http::Response overdue_report(const Call& call) {
     }
   }
   if (!report_depot(call, depot, errors)) return bad_query(errors);
-  auto report = build_overdue_report(call.ctx.store, depot, call.ctx.clock.now(), days);
-  if (!report) return store_problem(report.error());
-  if (wants_csv(call.request)) return csv_response(overdue_csv(*report));
-  return json_text_response(200, overdue_json(*report, days));
+  using Report = std::vector<analytics::DepotOverdue>;
+  return answer(
+      call, overdue_key(depot, days),
+      [&] { return cached_overdue_report(call.ctx.reports, call.ctx.store, depot, call.ctx.clock.now(), days); },
+      [days](const Report& r) { return overdue_json(r, days); }, [](const Report& r) { return overdue_csv(r); });
 }
 
 }  // namespace pbfleet::api::handlers

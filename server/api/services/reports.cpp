@@ -1,5 +1,7 @@
 #include "server/api/services/reports.hpp"
 
+#include <cstdio>
+
 #include "server/api/services/analytics_adapter.hpp"
 #include "server/api/services/fleet_index.hpp"
 
@@ -90,6 +92,74 @@ storage::StoreResult<std::vector<analytics::DepotOverdue>> build_overdue_report(
   fleet.reserve(contexts.size());
   for (std::size_t i = 0; i < contexts.size(); ++i) fleet.push_back({&contexts[i], latest[i]});
   return analytics::overdue_report(fleet, now, days);
+}
+
+namespace {
+
+std::string number(double v) {
+  char text[32];
+  std::snprintf(text, sizeof text, "%.4f", v);
+  return text;
+}
+
+// Reads the data version first, so a report built while a write lands is
+// kept under the older version: the next request after it builds afresh.
+template <class T, class Build>
+storage::StoreResult<std::shared_ptr<const T>> through(ReportCache& cache, storage::Store& store,
+                                                       const std::string& key,
+                                                       std::chrono::sys_seconds now, Build&& build) {
+  auto version = store.data_version();
+  if (!version) return version.error();
+  return cache.get<T>(key, *version, now, std::forward<Build>(build));
+}
+
+}  // namespace
+
+std::string winter_key(std::optional<storage::Id> depot, const analytics::ColdSpec& cold) {
+  std::string params = "on=" + std::to_string(cold.cold_date.time_since_epoch().count());
+  params += ";low=" + (cold.low ? number(cold.low->value) : std::string("depot"));
+  for (const auto& [id, low] : cold.depot_lows) params += ";" + std::to_string(id) + "=" + number(low.value);
+  return report_key("winter", depot, params);
+}
+
+std::string trend_key(std::string_view report, std::optional<storage::Id> depot) {
+  return report_key(report, depot, "");
+}
+
+std::string overdue_key(std::optional<storage::Id> depot, int days) {
+  return report_key("overdue", depot, "days=" + std::to_string(days));
+}
+
+storage::StoreResult<std::shared_ptr<const analytics::WinterReport>> cached_winter_report(
+    ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+    const analytics::ColdSpec& cold, std::chrono::sys_seconds now) {
+  return through<analytics::WinterReport>(cache, store, winter_key(depot, cold), now, [&] {
+    return build_winter_report(store, depot, cold, now, {});
+  });
+}
+
+storage::StoreResult<std::shared_ptr<const std::vector<analytics::SulfationAssessment>>>
+cached_sulfation_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+                        std::chrono::sys_seconds now) {
+  return through<std::vector<analytics::SulfationAssessment>>(
+      cache, store, trend_key("sulfation", depot), now,
+      [&] { return build_sulfation_report(store, depot, now, {}); });
+}
+
+storage::StoreResult<std::shared_ptr<const std::vector<analytics::ReplacementForecast>>>
+cached_replacement_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+                          std::chrono::sys_seconds now) {
+  return through<std::vector<analytics::ReplacementForecast>>(
+      cache, store, trend_key("replacements", depot), now,
+      [&] { return build_replacement_report(store, depot, now, {}); });
+}
+
+storage::StoreResult<std::shared_ptr<const std::vector<analytics::DepotOverdue>>> cached_overdue_report(
+    ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+    std::chrono::sys_seconds now, int days) {
+  return through<std::vector<analytics::DepotOverdue>>(
+      cache, store, overdue_key(depot, days), now,
+      [&] { return build_overdue_report(store, depot, now, days); });
 }
 
 }  // namespace pbfleet::api

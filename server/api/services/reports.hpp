@@ -16,6 +16,7 @@
 #include "models/analytics/replacement.hpp"
 #include "models/analytics/sulfation.hpp"
 #include "models/analytics/winter.hpp"
+#include "server/api/services/report_cache.hpp"
 #include "server/storage/store.hpp"
 
 namespace pbfleet::api {
@@ -37,5 +38,26 @@ storage::StoreResult<std::vector<analytics::ReplacementForecast>> build_replacem
 
 storage::StoreResult<std::vector<analytics::DepotOverdue>> build_overdue_report(
     storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now, int days);
+
+// The same reports through the cache: built once per depot scope,
+// parameters and data version (report_cache.hpp), with default settings.
+// `key` of each is the report's cache key, for callers that keep rendered
+// forms beside it.
+std::string winter_key(std::optional<storage::Id> depot, const analytics::ColdSpec& cold);
+std::string trend_key(std::string_view report, std::optional<storage::Id> depot);
+std::string overdue_key(std::optional<storage::Id> depot, int days);
+
+storage::StoreResult<std::shared_ptr<const analytics::WinterReport>> cached_winter_report(
+    ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+    const analytics::ColdSpec& cold, std::chrono::sys_seconds now);
+storage::StoreResult<std::shared_ptr<const std::vector<analytics::SulfationAssessment>>>
+cached_sulfation_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+                        std::chrono::sys_seconds now);
+storage::StoreResult<std::shared_ptr<const std::vector<analytics::ReplacementForecast>>>
+cached_replacement_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+                          std::chrono::sys_seconds now);
+storage::StoreResult<std::shared_ptr<const std::vector<analytics::DepotOverdue>>> cached_overdue_report(
+    ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
+    std::chrono::sys_seconds now, int days);
 
 }  // namespace pbfleet::api

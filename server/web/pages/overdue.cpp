@@ -12,7 +12,7 @@ http::Response overdue(const PageCall& call) {
   std::vector<std::string> errors;
   const auto depot = depot_filter(call, errors);
   const int days = analytics::AnalyticsSettings{}.overdue_days;
-  auto report = api::build_overdue_report(call.ctx.store, depot, call.ctx.clock.now(), days);
+  auto report = api::cached_overdue_report(call.ctx.reports, call.ctx.store, depot, call.ctx.clock.now(), days);
   if (!report) return message_page(call, 503, "Overdue readings", "The database is unavailable; try again shortly.");
   std::string main;
   Html h(main);
@@ -23,7 +23,7 @@ http::Response overdue(const PageCall& call) {
     h << "<p class=\"error\" role=\"alert\">";
     h.text(e) << "</p>";
   }
-  for (const auto& d : *report) {
+  for (const auto& d : **report) {
     h << "<section class=\"depot\" data-depot-id=\"" << std::to_string(d.depot_id) << "\"><h2>";
     h.text(d.depot_name) << " (" << std::to_string(d.batteries.size()) << " overdue)</h2>";
     if (d.batteries.empty()) {

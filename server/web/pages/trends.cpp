@@ -80,16 +80,16 @@ http::Response trends(const PageCall& call) {
   std::vector<std::string> errors;
   const auto depot = depot_filter(call, errors);
   const auto now = call.ctx.clock.now();
-  auto sulfation = api::build_sulfation_report(call.ctx.store, depot, now, {});
-  auto replacement = api::build_replacement_report(call.ctx.store, depot, now, {});
+  auto sulfation = api::cached_sulfation_report(call.ctx.reports, call.ctx.store, depot, now);
+  auto replacement = api::cached_replacement_report(call.ctx.reports, call.ctx.store, depot, now);
   if (!sulfation || !replacement)
     return message_page(call, 503, "Sulfation and replacement", "The database is unavailable; try again shortly.");
   std::vector<std::string_view> cautions;
-  std::string sulfation_html = sulfation_table(*sulfation, cautions);
+  std::string sulfation_html = sulfation_table(**sulfation, cautions);
   std::string main = "<form class=\"filters\" method=\"get\" action=\"/ui/trends\">" + depot_select(call, depot) +
                      "<button type=\"submit\">Show</button></form>";
   for (const auto& e : errors) main += "<p class=\"error\" role=\"alert\">" + escape(e) + "</p>";
-  main += cautions_box(cautions) + sulfation_html + replacement_table(*replacement);
+  main += cautions_box(cautions) + sulfation_html + replacement_table(**replacement);
   return html_response(document(call, "Sulfation and replacement", main));
 }
 

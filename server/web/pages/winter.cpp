@@ -96,8 +96,9 @@ http::Response winter(const PageCall& call) {
     level.clear();
   }
   if (!errors.empty()) cold.low.reset();
-  auto report = api::build_winter_report(call.ctx.store, depot, cold, call.ctx.clock.now(), {});
-  if (!report) return message_page(call, 503, "Winter risk", "The database is unavailable: " + report.error().detail);
+  auto cached = api::cached_winter_report(call.ctx.reports, call.ctx.store, depot, cold, call.ctx.clock.now());
+  if (!cached) return message_page(call, 503, "Winter risk", "The database is unavailable: " + cached.error().detail);
+  const std::shared_ptr<const analytics::WinterReport> report = *cached;
 
   std::vector<const analytics::WinterRisk*> rows;
   std::vector<std::string_view> cautions;
