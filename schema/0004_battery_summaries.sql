@@ -11,9 +11,11 @@
 -- battery_summaries holds, per battery, what a look-back over its newest
 -- 13 readings (analytics::kWinterLookback; order: taken_at, then id) finds:
 -- the newest reading's time, how many readings were looked at, and the
--- newest trusted one among them with how many newer readings lie above it.
--- The triggers below keep it in the inserting transaction, one primary-key
--- update per reading.
+-- newest trusted one among them with how many newer readings lie above it,
+-- and a revision that moves on with every reading stored for the battery
+-- (the server keeps trend results per battery and revision). The triggers
+-- below keep it in the inserting transaction, one primary-key update per
+-- reading.
 
 ALTER TABLE readings ADD COLUMN trusted_soc_pct REAL;
 ALTER TABLE readings ADD COLUMN trusted_temp_c REAL;
@@ -26,7 +28,8 @@ CREATE TABLE battery_summaries (
   trusted_at         INTEGER,
   trusted_soc_pct    REAL,
   trusted_temp_c     REAL,
-  newer_than_trusted INTEGER NOT NULL DEFAULT 0 CHECK (newer_than_trusted BETWEEN 0 AND 12)
+  newer_than_trusted INTEGER NOT NULL DEFAULT 0 CHECK (newer_than_trusted BETWEEN 0 AND 12),
+  revision           INTEGER NOT NULL DEFAULT 0
 ) STRICT;
 INSERT INTO battery_summaries (battery_id) SELECT id FROM batteries;
 CREATE TRIGGER batteries_summary AFTER INSERT ON batteries BEGIN
@@ -48,6 +51,7 @@ WHEN NEW.trusted_soc_pct IS NULL BEGIN
   UPDATE battery_summaries SET
     latest_at = max(coalesce(latest_at, NEW.taken_at), NEW.taken_at),
     recent = min(recent + 1, 13),
+    revision = revision + 1,
     newer_than_trusted = CASE
       WHEN trusted_at IS NULL OR NEW.taken_at < trusted_at THEN newer_than_trusted
       WHEN newer_than_trusted + 1 >= 13 THEN 0
@@ -69,7 +73,8 @@ CREATE TRIGGER readings_summary_trusted AFTER INSERT ON readings
 WHEN NEW.trusted_soc_pct IS NOT NULL BEGIN
   UPDATE battery_summaries SET
     latest_at = max(coalesce(latest_at, NEW.taken_at), NEW.taken_at),
-    recent = min(recent + 1, 13)
+    recent = min(recent + 1, 13),
+    revision = revision + 1
   WHERE battery_id = NEW.battery_id;
   UPDATE battery_summaries SET
     trusted_id = NEW.id,

@@ -28,7 +28,11 @@ struct Walk {
   std::span<const DerivedReading> derived;
 };
 
-double undercharge_days(const Walk& w, std::chrono::sys_seconds now, double threshold, int window_days) {
+// Days in the window ending at `now` during which the latest trusted SOC
+// was below `threshold`; each trusted SOC (ascending taken_at) is held
+// until the next one or now.
+double undercharge_days(std::span<const std::pair<std::chrono::sys_seconds, double>> trusted_soc,
+                        std::chrono::sys_seconds now, double threshold, int window_days) {
   const double window_start = -static_cast<double>(window_days);
   double total = 0.0;
   std::optional<std::pair<double, double>> held;  // (since, soc) relative to now, days
@@ -36,14 +40,32 @@ double undercharge_days(const Walk& w, std::chrono::sys_seconds now, double thre
     if (!held || held->second >= threshold) return;
     total += std::max(0.0, until - std::max(held->first, window_start));
   };
-  for (std::size_t i = 0; i < w.readings.size(); ++i) {
-    if (!w.derived[i].trusted) continue;
-    const double at = -days_between(w.readings[i].taken_at, now);
+  for (const auto& [taken_at, soc] : trusted_soc) {
+    const double at = -days_between(taken_at, now);
     close(std::min(at, 0.0));
-    held = std::pair{at, *w.derived[i].soc_percent};
+    held = std::pair{at, soc};
   }
   close(0.0);
   return total;
+}
+
+// The trusted readings' SOC a window of `window_days` ending at or after
+// the newest reading can reach: those within it, and the last one before.
+std::vector<std::pair<std::chrono::sys_seconds, double>> reachable_trusted_soc(const Walk& w, int window_days) {
+  std::vector<std::pair<std::chrono::sys_seconds, double>> all;
+  for (std::size_t i = 0; i < w.readings.size(); ++i) {
+    if (w.derived[i].trusted) all.emplace_back(w.readings[i].taken_at, *w.derived[i].soc_percent);
+  }
+  if (w.readings.empty()) return all;
+  std::chrono::sys_seconds newest = w.readings.front().taken_at;
+  for (const auto& r : w.readings) newest = std::max(newest, r.taken_at);
+  // A day's margin: a "now" up to a day before the newest reading (clocks
+  // of two servers apart) still finds every reading it needs.
+  const auto start = newest - std::chrono::days{window_days + 1};
+  std::size_t first = 0;
+  while (first + 1 < all.size() && all[first + 1].first <= start) ++first;
+  all.erase(all.begin(), all.begin() + static_cast<long>(first));
+  return all;
 }
 
 void fit_full_charge_trend(const Walk& w, const AnalyticsSettings& s, SulfationAssessment& a) {
@@ -229,6 +251,50 @@ std::string_view to_string(TrendBasis b) {
   return "unknown";
 }
 
+SulfationBasis sulfation_basis(const BatteryHistory& history, const AnalyticsSettings& s) {
+  const auto derived = derive_all(history.readings, history.battery.spec, s);
+  return sulfation_basis(history, derived, s);
+}
+
+SulfationBasis sulfation_basis(const BatteryHistory& history, std::span<const DerivedReading> derived,
+                               const AnalyticsSettings& s) {
+  assert(derived.size() == history.readings.size());
+  const Walk w{history.readings, derived};
+  SulfationBasis basis;
+  SulfationAssessment& a = basis.fixed;
+  fit_full_charge_trend(w, s, a);
+  fit_spread_trend(w, s, a);
+  describe_trends(a);
+  check_recovery(w, history.battery.spec, s, a);
+  check_load_test(w, a);
+  basis.weak_after_charge = weak_cell_after_charge(w);
+  basis.trusted_soc = reachable_trusted_soc(w, s.exposure_window_days);
+  for (const auto& r : history.readings) {
+    if (!basis.newest_reading || r.taken_at > *basis.newest_reading) basis.newest_reading = r.taken_at;
+  }
+  return basis;
+}
+
+SulfationAssessment assess_sulfation(const BatteryContext& battery, const SulfationBasis& basis,
+                                     std::chrono::sys_seconds now, const AnalyticsSettings& s) {
+  SulfationAssessment a = basis.fixed;
+  a.serial = battery.serial;
+  a.depot_id = battery.depot_id;
+  a.depot_name = battery.depot_name;
+  a.exposure_window_days = s.exposure_window_days;
+  a.undercharge_threshold_pct = undercharge_threshold_pct(s, battery.spec.chemistry);
+  a.undercharge_days =
+      undercharge_days(basis.trusted_soc, now, a.undercharge_threshold_pct, s.exposure_window_days);
+  // The exposure reason comes first, then the trends, recovery and load test.
+  std::vector<std::string> reasons;
+  std::swap(reasons, a.reasons);
+  describe_exposure(a);
+  a.reasons.insert(a.reasons.end(), reasons.begin(), reasons.end());
+  a.level = classify(a, s, basis.weak_after_charge);
+  recommend(a, battery.spec.chemistry);
+  return a;
+}
+
 SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono::sys_seconds now,
                                      const AnalyticsSettings& s) {
   const auto derived = derive_all(history.readings, history.battery.spec, s);
@@ -237,25 +303,13 @@ SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono:
 
 SulfationAssessment assess_sulfation(const BatteryHistory& history, std::span<const DerivedReading> derived,
                                      std::chrono::sys_seconds now, const AnalyticsSettings& s) {
-  assert(derived.size() == history.readings.size());
-  const auto& battery = history.battery;
-  const Walk w{history.readings, derived};
-  SulfationAssessment a;
-  a.serial = battery.serial;
-  a.depot_id = battery.depot_id;
-  a.depot_name = battery.depot_name;
-  a.exposure_window_days = s.exposure_window_days;
-  a.undercharge_threshold_pct = undercharge_threshold_pct(s, battery.spec.chemistry);
-  a.undercharge_days = undercharge_days(w, now, a.undercharge_threshold_pct, s.exposure_window_days);
-  describe_exposure(a);
-  fit_full_charge_trend(w, s, a);
-  fit_spread_trend(w, s, a);
-  describe_trends(a);
-  check_recovery(w, battery.spec, s, a);
-  check_load_test(w, a);
-  a.level = classify(a, s, weak_cell_after_charge(w));
-  recommend(a, battery.spec.chemistry);
-  return a;
+  SulfationBasis basis = sulfation_basis(history, derived, s);
+  // Every trusted SOC, so any "now" (also one before the newest reading) is judged as always.
+  basis.trusted_soc.clear();
+  for (std::size_t i = 0; i < derived.size(); ++i) {
+    if (derived[i].trusted) basis.trusted_soc.emplace_back(history.readings[i].taken_at, *derived[i].soc_percent);
+  }
+  return assess_sulfation(history.battery, basis, now, s);
 }
 
 std::vector<SulfationAssessment> sulfation_report(std::span<const BatteryHistory> fleet,

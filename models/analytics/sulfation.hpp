@@ -91,6 +91,27 @@ SulfationAssessment assess_sulfation(const BatteryHistory& history, std::chrono:
 SulfationAssessment assess_sulfation(const BatteryHistory& history, std::span<const DerivedReading> derived,
                                      std::chrono::sys_seconds now, const AnalyticsSettings& settings);
 
+// What an assessment rests on besides "now": the trends, the recovery
+// after charges, the latest load test and the cells, worked out once from a
+// history, and the trusted readings' SOC the undercharge exposure is
+// measured from (only those a window ending at most a day before the
+// newest reading can reach). A caller may keep it while the battery's readings and spec
+// stay the same; the server keeps one per battery.
+struct SulfationBasis {
+  SulfationAssessment fixed;  // all but battery names, exposure, level, actions, cautions
+  std::vector<std::pair<std::chrono::sys_seconds, double>> trusted_soc;  // ascending taken_at
+  std::optional<std::chrono::sys_seconds> newest_reading;
+  bool weak_after_charge = false;
+};
+SulfationBasis sulfation_basis(const BatteryHistory& history, std::span<const DerivedReading> derived,
+                               const AnalyticsSettings& settings);
+SulfationBasis sulfation_basis(const BatteryHistory& history, const AnalyticsSettings& settings);
+// The assessment at `now` from a basis: equal to assess_sulfation on the
+// history the basis came from. REQUIRES: now >= basis.newest_reading minus
+// one day (an earlier "now" may need readings the basis dropped).
+SulfationAssessment assess_sulfation(const BatteryContext& battery, const SulfationBasis& basis,
+                                     std::chrono::sys_seconds now, const AnalyticsSettings& settings);
+
 // Orders a fleet list: worst class first, then exposure, then serial.
 void sort_sulfation_report(std::vector<SulfationAssessment>& report);
 

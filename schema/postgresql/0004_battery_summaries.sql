@@ -19,7 +19,8 @@ CREATE TABLE battery_summaries (
   trusted_at         BIGINT,
   trusted_soc_pct    DOUBLE PRECISION,
   trusted_temp_c     DOUBLE PRECISION,
-  newer_than_trusted INTEGER NOT NULL DEFAULT 0 CHECK (newer_than_trusted BETWEEN 0 AND 12)
+  newer_than_trusted INTEGER NOT NULL DEFAULT 0 CHECK (newer_than_trusted BETWEEN 0 AND 12),
+  revision           BIGINT NOT NULL DEFAULT 0
 );
 INSERT INTO battery_summaries (battery_id) SELECT id FROM batteries;
 
@@ -58,7 +59,8 @@ CREATE FUNCTION refresh_battery_summaries(touched BIGINT[]) RETURNS void LANGUAG
     trusted_at = b.taken_at,
     trusted_soc_pct = b.trusted_soc_pct,
     trusted_temp_c = b.trusted_temp_c,
-    newer_than_trusted = coalesce(b.place, 0)
+    newer_than_trusted = coalesce(b.place, 0),
+    revision = s.revision + 1
   FROM unnest(touched) AS t(battery_id)
   LEFT JOIN counted c ON c.battery_id = t.battery_id
   LEFT JOIN basis b ON b.battery_id = t.battery_id

@@ -18,6 +18,7 @@ struct Api::Impl {
   Authenticator auth;
   ReadingWriter writer;
   ReportCache reports;
+  TrendMemo trends;
   Context context;
   Pages* pages = nullptr;
 
@@ -25,7 +26,7 @@ struct Api::Impl {
       : options(std::move(o)),
         auth(store, clock, options.auth),
         writer(store, clock, options.writer),
-        context{store, clock, metrics, auth, writer, options, reports} {}
+        context{store, clock, metrics, auth, writer, options, reports, trends} {}
 };
 
 const std::string& Call::param(const std::string& name) const {

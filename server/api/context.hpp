@@ -12,6 +12,7 @@
 #include "server/api/request_util.hpp"
 #include "server/api/services/reading_writer.hpp"
 #include "server/api/services/report_cache.hpp"
+#include "server/api/services/trend_memo.hpp"
 #include "server/http/message.hpp"
 #include "server/storage/store.hpp"
 
@@ -32,6 +33,7 @@ struct Context {
   ReadingWriter& writer;
   const ApiOptions& options;
   ReportCache& reports;  // built reports and their rendered bodies
+  TrendMemo& trends;     // sulfation bases per battery, between reports
 };
 
 // One request as a handler sees it.

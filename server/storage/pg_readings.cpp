@@ -3,6 +3,7 @@
 // (pg_store.hpp), so a reading_id raced through two instances is inserted by
 // one and found as a replay (or a conflict) by the other.
 #include <limits>
+#include <unordered_set>
 
 #include "server/storage/pg_rows.hpp"
 #include "server/storage/pg_store_impl.hpp"
@@ -109,6 +110,23 @@ void per_battery(pqxx::dbtransaction& tx, const std::vector<Battery>& batteries,
   }
 }
 
+// The last `count` measurements of each battery, newest first, one battery
+// at a time into one reused buffer, as on SQLite.
+Done visit_measurements(pqxx::dbtransaction& tx, const std::vector<Battery>& batteries, std::size_t count,
+                        const MeasurementVisitor& visit) {
+  std::vector<ReadingMeasurement> rows;
+  per_battery(tx, batteries, "last_measurements", static_cast<std::int64_t>(count), 9,
+              [&](const Battery& b, auto first, auto last) {
+                std::size_t n = 0;
+                for (auto r = first; r != last; ++r) {
+                  if (n == rows.size()) rows.emplace_back();
+                  read_measurement(*r, rows[n++]);
+                }
+                visit(b, std::span<const ReadingMeasurement>(rows.data(), n));
+              });
+  return Done{};
+}
+
 }  // namespace
 
 StoreResult<std::vector<BatteryReadings>> PgStore::last_readings(const BatteryFilter& filter,
@@ -127,23 +145,22 @@ StoreResult<std::vector<BatteryReadings>> PgStore::last_readings(const BatteryFi
   });
 }
 
-StoreResult<Done> PgStore::visit_last_measurements(const BatteryFilter& filter, std::size_t count,
-                                                   const MeasurementVisitor& visit) {
+StoreResult<Done> PgStore::visit_last_measurements_of(const std::vector<Id>& battery_ids,
+                                                      std::size_t count,
+                                                      const MeasurementVisitor& visit) {
   return read([&](pqxx::dbtransaction& tx) {
-    // One buffer for every battery, as on SQLite.
-    std::vector<ReadingMeasurement> rows;
-    per_battery(tx, batteries_matching(tx, filter), "last_measurements",
-                static_cast<std::int64_t>(count), 9, [&](const Battery& b, auto first, auto last) {
-                  std::size_t n = 0;
-                  for (auto r = first; r != last; ++r) {
-                    if (n == rows.size()) rows.emplace_back();
-                    read_measurement(*r, rows[n++]);
-                  }
-                  visit(b, std::span<const ReadingMeasurement>(rows.data(), n));
-                });
-    return Done{};
+    const std::unordered_set<Id> wanted(battery_ids.begin(), battery_ids.end());
+    std::vector<Battery> batteries = batteries_matching(tx, {});
+    std::erase_if(batteries, [&](const Battery& b) { return !wanted.contains(b.id); });
+    return visit_measurements(tx, batteries, count, visit);
   });
 }
+
+StoreResult<Done> PgStore::visit_last_measurements(const BatteryFilter& filter, std::size_t count,
+                                                   const MeasurementVisitor& visit) {
+  return read([&](pqxx::dbtransaction& tx) { return visit_measurements(tx, batteries_matching(tx, filter), count, visit); });
+}
+
 
 StoreResult<std::vector<BatteryReadings>> PgStore::latest_settled(const BatteryFilter& filter,
                                                                   models::Hours min_rest) {

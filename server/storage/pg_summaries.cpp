@@ -81,7 +81,7 @@ StoreResult<Done> PgStore::visit_summaries(const BatteryFilter& filter, const Su
   return read([&](pqxx::dbtransaction& tx) {
     const std::vector<Battery> batteries = batteries_matching(tx, filter);
     const auto rows = tx.exec(
-        "SELECT battery_id, latest_at, recent, trusted_at, trusted_soc_pct, trusted_temp_c"
+        "SELECT battery_id, latest_at, recent, trusted_at, trusted_soc_pct, trusted_temp_c, revision"
         " FROM battery_summaries ORDER BY battery_id");
     auto row = rows.begin();
     for (const Battery& b : batteries) {
@@ -95,6 +95,7 @@ StoreResult<Done> PgStore::visit_summaries(const BatteryFilter& filter, const Su
           summary.trusted = analytics::TrustedBasis{from_db_seconds(r[3].as<std::int64_t>()),
                                                     r[4].as<double>(), r[5].as<double>()};
         }
+        summary.revision = r[6].as<std::int64_t>();
       }
       visit(b, summary);
     }

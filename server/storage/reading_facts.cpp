@@ -62,10 +62,10 @@ std::string facts_version() {
   return text;
 }
 
-BatterySummary summary_of(std::span<const FactsRow> newest_first) {
+analytics::WinterBasis summary_of(std::span<const FactsRow> newest_first) {
   if (newest_first.size() > analytics::kWinterLookback)
     newest_first = newest_first.first(analytics::kWinterLookback);
-  BatterySummary s;
+  analytics::WinterBasis s;
   s.recent = newest_first.size();
   if (!newest_first.empty()) s.latest_at = newest_first.front().taken_at;
   for (const auto& row : newest_first) {

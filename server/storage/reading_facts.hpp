@@ -42,8 +42,11 @@ ReadingFacts facts_of(const models::BatterySpec& spec, const analytics::ReadingP
 std::string facts_version();
 
 // One battery's summary: what winter_basis finds among its newest
-// analytics::kWinterLookback readings.
-using BatterySummary = analytics::WinterBasis;
+// analytics::kWinterLookback readings, and a revision that moves on with
+// every change to its readings (for callers that keep results per battery).
+struct BatterySummary : analytics::WinterBasis {
+  std::int64_t revision = 0;
+};
 
 // The summary from a battery's newest readings' facts, newest first (ties:
 // the later stored first); only the first kWinterLookback are looked at.
@@ -51,6 +54,6 @@ struct FactsRow {
   std::chrono::sys_seconds taken_at{};
   ReadingFacts facts;
 };
-BatterySummary summary_of(std::span<const FactsRow> newest_first);
+analytics::WinterBasis summary_of(std::span<const FactsRow> newest_first);
 
 }  // namespace pbfleet::storage

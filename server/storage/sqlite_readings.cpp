@@ -4,6 +4,7 @@
 #include <cstring>
 #include <limits>
 #include <unordered_map>
+#include <unordered_set>
 
 #include "server/storage/reading_facts.hpp"
 #include "server/storage/tokens.hpp"
@@ -311,26 +312,46 @@ StoreResult<std::vector<BatteryReadings>> SqliteStore::last_readings(const Batte
   });
 }
 
+namespace {
+
+// The last `count` measurements of each battery, newest first, one battery
+// at a time.
+Done visit_measurements(Db& db, const std::vector<Battery>& batteries, std::size_t count,
+                        const MeasurementVisitor& visit) {
+  auto s = db.prepare(std::string(kMeasurementSelect) +
+                      " WHERE r.battery_id = ?1 ORDER BY r.taken_at DESC, r.id DESC LIMIT ?2");
+  // One buffer for every battery: rows and their cell lists keep their
+  // capacity, so the scan allocates only while the first batteries grow it.
+  std::vector<ReadingMeasurement> rows;
+  for (const Battery& b : batteries) {
+    s.reset();
+    s.bind(1, b.id).bind(2, static_cast<std::int64_t>(count));
+    std::size_t n = 0;
+    while (s.step()) {
+      if (n == rows.size()) rows.emplace_back();
+      read_measurement(s, rows[n++]);
+    }
+    visit(b, std::span<const ReadingMeasurement>(rows.data(), n));
+  }
+  return Done{};
+}
+
+}  // namespace
+
 StoreResult<Done> SqliteStore::visit_last_measurements(const BatteryFilter& filter,
                                                          std::size_t count,
                                                          const MeasurementVisitor& visit) {
+  return read([&](Db& db) { return visit_measurements(db, batteries_matching(db, filter), count, visit); });
+}
+
+StoreResult<Done> SqliteStore::visit_last_measurements_of(const std::vector<Id>& battery_ids,
+                                                            std::size_t count,
+                                                            const MeasurementVisitor& visit) {
   return read([&](Db& db) {
-    auto s = db.prepare(std::string(kMeasurementSelect) +
-                        " WHERE r.battery_id = ?1 ORDER BY r.taken_at DESC, r.id DESC LIMIT ?2");
-    // One buffer for every battery: rows and their cell lists keep their
-    // capacity, so the scan allocates only while the first batteries grow it.
-    std::vector<ReadingMeasurement> rows;
-    for (const Battery& b : batteries_matching(db, filter)) {
-      s.reset();
-      s.bind(1, b.id).bind(2, static_cast<std::int64_t>(count));
-      std::size_t n = 0;
-      while (s.step()) {
-        if (n == rows.size()) rows.emplace_back();
-        read_measurement(s, rows[n++]);
-      }
-      visit(b, std::span<const ReadingMeasurement>(rows.data(), n));
-    }
-    return Done{};
+    const std::unordered_set<Id> wanted(battery_ids.begin(), battery_ids.end());
+    std::vector<Battery> batteries = batteries_matching(db, {});
+    std::erase_if(batteries, [&](const Battery& b) { return !wanted.contains(b.id); });
+    return visit_measurements(db, batteries, count, visit);
   });
 }
 

@@ -64,6 +64,8 @@ class SqliteStore final : public Store {
                                                           std::size_t count) override;
   StoreResult<Done> visit_last_measurements(const BatteryFilter& filter, std::size_t count,
                                             const MeasurementVisitor& visit) override;
+  StoreResult<Done> visit_last_measurements_of(const std::vector<Id>& battery_ids, std::size_t count,
+                                               const MeasurementVisitor& visit) override;
   StoreResult<std::vector<BatteryReadings>> latest_settled(const BatteryFilter& filter,
                                                            models::Hours min_rest) override;
   StoreResult<std::int64_t> readings_count() override;

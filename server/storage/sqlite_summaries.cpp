@@ -57,7 +57,8 @@ void rebuild_summary(Db& db, Id battery) {
   db.prepare("INSERT OR IGNORE INTO battery_summaries (battery_id) VALUES (?1)").bind(1, battery).run();
   auto update = db.prepare(
       "UPDATE battery_summaries SET latest_at = ?2, recent = ?3, trusted_id = ?4, trusted_at = ?5,"
-      " trusted_soc_pct = ?6, trusted_temp_c = ?7, newer_than_trusted = ?8 WHERE battery_id = ?1");
+      " trusted_soc_pct = ?6, trusted_temp_c = ?7, newer_than_trusted = ?8, revision = revision + 1"
+      " WHERE battery_id = ?1");
   update.bind(1, battery).bind(2, latest).bind(3, recent).bind(4, trusted_id).bind(5, trusted_at);
   update.bind(6, soc).bind(7, temp).bind(8, trusted_id ? newer : 0).run();
 }
@@ -93,7 +94,7 @@ StoreResult<Done> SqliteStore::visit_summaries(const BatteryFilter& filter,
     const std::vector<Battery> batteries = batteries_matching(db, filter);
     // Both in battery id order: one pass over the summaries table.
     auto s = db.prepare(
-        "SELECT battery_id, latest_at, recent, trusted_at, trusted_soc_pct, trusted_temp_c"
+        "SELECT battery_id, latest_at, recent, trusted_at, trusted_soc_pct, trusted_temp_c, revision"
         " FROM battery_summaries ORDER BY battery_id");
     bool more = s.step();
     for (const Battery& b : batteries) {
@@ -105,6 +106,7 @@ StoreResult<Done> SqliteStore::visit_summaries(const BatteryFilter& filter,
         if (!s.is_null(3) && !s.is_null(4) && !s.is_null(5)) {
           summary.trusted = analytics::TrustedBasis{from_db_seconds(s.int_at(3)), s.real_at(4), s.real_at(5)};
         }
+        summary.revision = s.int_at(6);
       }
       visit(b, summary);
     }

@@ -235,6 +235,10 @@ class Store {
   virtual StoreResult<Done> visit_last_measurements(const BatteryFilter& filter,
                                                     std::size_t count,
                                                     const MeasurementVisitor& visit) = 0;
+  // The same for the batteries with these ids only (unknown ids are skipped).
+  virtual StoreResult<Done> visit_last_measurements_of(const std::vector<Id>& battery_ids,
+                                                       std::size_t count,
+                                                       const MeasurementVisitor& visit) = 0;
   // The newest reading of each matching battery with rest_h >= min_rest
   // (a settled OCV); batteries without one come with no readings.
   virtual StoreResult<std::vector<BatteryReadings>> latest_settled(const BatteryFilter& filter,

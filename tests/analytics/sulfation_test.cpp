@@ -3,6 +3,7 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <random>
 #include <string>
 
 #include "tests/analytics/synthetic.hpp"
@@ -224,4 +225,49 @@ TEST_CASE("class and action words are stable") {
   CHECK(pa::to_string(pa::SulfationClass::likely_permanent) == "likely_permanent");
   CHECK(pa::to_string(pa::Action::equalise) == "equalise");
   CHECK(pa::to_string(pa::TrendBasis::after_charge) == "after_charge");
+}
+
+// The basis the server keeps per battery (SulfationBasis) gives the same
+// assessment as the whole history at any later "now": random histories of
+// mixed rested, unsettled, after-charge and low-SOC readings, judged from
+// the newest reading's day to a year later.
+TEST_CASE("an assessment from a kept basis equals one from the whole history, at any later now") {
+  std::mt19937 rng(4242);
+  std::uniform_real_distribution<double> unit(0.0, 1.0);
+  int compared = 0, exposed = 0;
+  for (int battery = 0; battery < 60; ++battery) {
+    pa::BatteryHistory h;
+    h.battery = flooded_battery("B-1");
+    const int count = 1 + static_cast<int>(unit(rng) * 120);
+    for (int i = 0; i < count; ++i) {
+      Truth t{.cell_sg = 1.150 + 0.115 * unit(rng),
+              .electrolyte_c = -10.0 + 35.0 * unit(rng),
+              .rest_h = unit(rng) < 0.3 ? 1.0 : 12.0,
+              .with_sg = unit(rng) < 0.7,
+              .after_charge = unit(rng) < 0.25};
+      h.readings.push_back(reading_from_truth(days_before_now(7.0 * (count - i) + 3.0 * unit(rng)), t));
+    }
+    std::sort(h.readings.begin(), h.readings.end(),
+              [](const auto& a, const auto& b) { return a.taken_at < b.taken_at; });
+    const pa::SulfationBasis basis = pa::sulfation_basis(h, kSettings);
+    for (const double later_days : {-0.9, 0.0, 3.0, 45.0, 89.5, 200.0, 365.0}) {
+      const auto now = h.readings.back().taken_at +
+                       std::chrono::duration_cast<std::chrono::seconds>(std::chrono::duration<double, std::ratio<86400>>(later_days));
+      CAPTURE(battery);
+      CAPTURE(later_days);
+      const auto whole = pa::assess_sulfation(h, now, kSettings);
+      const auto kept = pa::assess_sulfation(h.battery, basis, now, kSettings);
+      CHECK(kept.undercharge_days == doctest::Approx(whole.undercharge_days).epsilon(1e-12));
+      CHECK(kept.level == whole.level);
+      CHECK(kept.reasons == whole.reasons);
+      CHECK(kept.actions == whole.actions);
+      CHECK(kept.trend_points == whole.trend_points);
+      CHECK(kept.charges_seen == whole.charges_seen);
+      CHECK(kept.weak_cell == whole.weak_cell);
+      ++compared;
+      exposed += whole.undercharge_days > 0.0;
+    }
+  }
+  CHECK(compared == 60 * 7);
+  CHECK(exposed > 30);  // the exposure path was exercised, not only zeros
 }

@@ -5,6 +5,8 @@
 
 #include <doctest/doctest.h>
 
+#include "server/api/report_codec.hpp"
+#include "server/api/services/reports.hpp"
 #include "tests/api/fixture.hpp"
 
 namespace pbfleet::api {
@@ -83,6 +85,55 @@ TEST_CASE("the same report twice is one build, and a new reading or a fleet chan
   const auto after_retire = f.get("/v1/reports/winter?low_c=-30", "manager");
   CHECK(risk_of(after_reading, "NY-0002").is_object());
   CHECK(risk_of(after_retire, "NY-0002").is_null());
+}
+
+}  // namespace pbfleet::api
+
+namespace pbfleet::api {
+
+// The sulfation bases kept between reports (services/trend_memo.hpp): a
+// report equals one built from scratch, and only the batteries whose
+// readings or spec changed are read again.
+TEST_CASE("sulfation from kept bases equals a fresh build and rebuilds only what changed") {
+  ApiFixture f;
+  // Ten weekly readings per battery, the SG sagging on NY-0001.
+  nlohmann::json batch = nlohmann::json::array();
+  for (const char* serial : {"NY-0001", "NY-0002", "HB-0001"}) {
+    for (int week = 0; week < 10; ++week) {
+      auto r = good_reading(serial, std::string(serial) + "-w" + std::to_string(week), 60 * 24 * 7 * (10 - week));
+      if (std::string(serial) == "NY-0001") r["cell_sg"] = nlohmann::json::array({1.20, 1.19, 1.20, 1.18, 1.20, 1.19});
+      r["after_charge"] = week % 3 == 0;
+      batch.push_back(r);
+    }
+  }
+  REQUIRE(f.post("/v1/readings", batch, "crew").status == 201);
+  TrendMemo& memo = f.api().context().trends;
+  auto fresh_json = [&] {
+    TrendMemo fresh;
+    auto report = build_sulfation_report(f.store(), fresh, std::nullopt, f.clock().now(), {});
+    REQUIRE(report.ok());
+    return body_of(json_text_response(200, sulfation_json(*report)));
+  };
+
+  const auto first = f.get("/v1/reports/sulfation", "manager");
+  REQUIRE(first.status == 200);
+  CHECK(memo.counts().built == 3);
+  CHECK(body_of(first) == fresh_json());
+
+  // An older reading for one battery, out of order: only it is rebuilt.
+  REQUIRE(f.post("/v1/readings", good_reading("NY-0002", "late-1", 60 * 24 * 100), "crew").status == 201);
+  f.clock().at += std::chrono::hours{30};  // and a day later: the exposure moves on
+  const auto second = f.get("/v1/reports/sulfation", "manager");
+  CHECK(memo.counts().built == 4);
+  CHECK(memo.counts().kept >= 2);
+  CHECK(body_of(second) == fresh_json());
+
+  // A spec change rebuilds that battery.
+  REQUIRE(f.call("PATCH", "/v1/batteries/HB-0001", "admin", R"({"full_charge_sg": 1.280})").status == 200);
+  const auto third = f.get("/v1/reports/replacements", "manager");
+  REQUIRE(third.status == 200);
+  CHECK(memo.counts().built == 5);
+  CHECK(body_of(f.get("/v1/reports/sulfation", "manager")) == fresh_json());
 }
 
 }  // namespace pbfleet::api

@@ -1,8 +1,13 @@
 // Report figures on a generated fleet (deploy/demogen, cached between runs):
-//   report.*   winter, sulfation and one battery's history at B batteries x
-//              W weekly readings, timed in process (the service the handler
-//              calls) and over HTTP, each against a bare SQL scan of the same
-//              rows by the same index;
+//   report.*   winter, sulfation, replacement and one battery's history at
+//              B batteries x W weekly readings, timed in process (the
+//              service the handler calls) and over HTTP, against bare SQL
+//              scans by the same index: the winter report against the
+//              latest reading per battery, sulfation and replacement
+//              against the last 13 per battery, the history against its
+//              rows; the winter report asked twice (report cache); and the
+//              winter report at G batteries with W3 and W4 readings each
+//              (it must not grow with history);
 //   memory.*   peak RSS (VmHWM) of pbfleetd across the winter report over HTTP;
 //   scale.*    the winter report at each fleet size of a series, and its
 //              growth from the second-largest to the largest size against
@@ -10,7 +15,8 @@
 // Times are the median of R runs after one untimed warm-up run.
 //
 //   bench_report --pbfleetd PATH --cache DIR [--batteries B] [--weeks W]
-//                [--scaling 1000,10000,50000] [--scaling-weeks W2] [--repeat R]
+//                [--scaling 1000,10000,50000] [--scaling-weeks W2]
+//                [--growth-batteries G] [--growth-weeks W3,W4] [--repeat R]
 #include <algorithm>
 #include <cstdio>
 #include <cstdlib>
@@ -41,6 +47,8 @@ struct Options {
   int weeks = 260;
   std::vector<int> scaling{1'000, 10'000, 50'000};
   int scaling_weeks = 52;
+  int growth_batteries = 10'000;
+  std::vector<int> growth_weeks{52, 520};
   int repeat = 3;
 };
 
@@ -66,12 +74,15 @@ Options parse(int argc, char** argv) {
     else if (key == "--weeks") o.weeks = std::stoi(value);
     else if (key == "--scaling") o.scaling = parse_list(value);
     else if (key == "--scaling-weeks") o.scaling_weeks = std::stoi(value);
+    else if (key == "--growth-batteries") o.growth_batteries = std::stoi(value);
+    else if (key == "--growth-weeks") o.growth_weeks = parse_list(value);
     else if (key == "--repeat") o.repeat = std::max(1, std::stoi(value));
     else { std::fprintf(stderr, "unknown option %s\n", key.c_str()); std::exit(2); }
   }
-  if (o.pbfleetd.empty() || o.cache.empty() || o.scaling.size() < 2) {
+  if (o.pbfleetd.empty() || o.cache.empty() || o.scaling.size() < 2 || o.growth_weeks.size() < 2) {
     std::fprintf(stderr, "usage: bench_report --pbfleetd PATH --cache DIR [--batteries B] "
-                         "[--weeks W] [--scaling A,B,...] [--scaling-weeks W2] [--repeat R]\n");
+                         "[--weeks W] [--scaling A,B,...] [--scaling-weeks W2] "
+                         "[--growth-batteries G] [--growth-weeks W3,W4] [--repeat R]\n");
     std::exit(2);
   }
   return o;
@@ -131,23 +142,51 @@ double http_seconds(HttpClient& client, const std::string& target, int repeat) {
   });
 }
 
+// Over HTTP, a different cold date each time, so every request misses the
+// report cache and builds the report.
+double http_uncached_seconds(HttpClient& client, int repeat) {
+  int day = 0;
+  return median_seconds(repeat, [&] {
+    const std::string target = "/v1/reports/winter?on=2026-12-" + std::to_string(10 + (day++ % 19));
+    const auto reply = client.send("GET", target);
+    if (reply.status != 200)
+      std::exit((std::fprintf(stderr, "GET %s: %d %.300s\n", target.c_str(), reply.status,
+                              reply.body.c_str()), 1));
+  });
+}
+
 void reports(const Options& o) {
   const FleetDb db = fleet_db(o.cache, o.batteries, o.weeks);
   const std::string tag = "." + size_name(o.batteries);
   const std::string serial = serial_with_id(db.file, o.batteries / 2);
-  BareReader bare(db.file);
-  const double bare_winter = median_scan(o.repeat, [&] { return bare.last_readings(api::kWinterLookback); });
-  const double bare_trend = median_scan(o.repeat, [&] { return bare.last_readings(api::kTrendLookback); });
-  const double bare_history = median_scan(o.repeat, [&] { return bare.history(serial); });
-  const std::string history_target = "/v1/batteries/" + serial + "/history";
   std::string token;
   {
-    auto store = open_store(db.file);
+    auto store = open_store(db.file);  // first: a database from an older binary is summarised here
     token = admin_token(*store);
+  }
+  BareReader bare(db.file);
+  const double bare_latest = median_scan(o.repeat, [&] { return bare.last_readings(1); });
+  const double bare_recent = median_scan(o.repeat, [&] { return bare.last_readings(api::kWinterLookback); });
+  const double bare_history = median_scan(o.repeat, [&] { return bare.history(serial); });
+  const std::string history_target = "/v1/batteries/" + serial + "/history";
+  {
+    auto store = open_store(db.file);
     const double winter = winter_in_process(*store, o.repeat);
-    const double sulfation = median_seconds(o.repeat, [&] {
-      auto r = api::build_sulfation_report(*store, std::nullopt, kReportNow, {});
+    // Sulfation and replacement keep one basis per battery between reports
+    // (api::TrendMemo): the first report after start builds them all, the
+    // next ones only those whose readings changed.
+    api::TrendMemo memo;
+    auto sulfation_report = [&] {
+      auto r = api::build_sulfation_report(*store, memo, std::nullopt, kReportNow, {});
       if (!r) std::exit((std::fprintf(stderr, "sulfation: %s\n", r.error().detail.c_str()), 1));
+    };
+    const auto first_start = SteadyClock::now();
+    sulfation_report();
+    const double sulfation_first = seconds_since(first_start);
+    const double sulfation = median_seconds(o.repeat, sulfation_report);
+    const double replacement = median_seconds(o.repeat, [&] {
+      auto r = api::build_replacement_report(*store, memo, std::nullopt, kReportNow, {});
+      if (!r) std::exit((std::fprintf(stderr, "replacements: %s\n", r.error().detail.c_str()), 1));
     });
     FixedClock clock;
     api::Api app(*store, clock);
@@ -156,23 +195,65 @@ void reports(const Options& o) {
       const auto res = app.handle(std::move(req));
       if (res.status != 200) std::exit((std::fprintf(stderr, "history: %d %.300s\n", res.status, res.body.c_str()), 1));
     });
-    print_figure(timed("report.winter" + tag, winter, bare_winter, below(1.0, "< 1 s")));
-    print_figure(timed("report.sulfation" + tag, sulfation, bare_trend));
+    auto w = timed("report.winter" + tag, winter, bare_latest, at_most(5.0, "<= 5x"));
+    w.limit_name = "latest reading/battery";
+    print_figure(w);
+    auto first = timed("report.sulfation" + tag + ".first", sulfation_first, bare_recent);
+    first.limit_name = "last 13 per battery";
+    first.note = "first report after start: every basis built";
+    print_figure(first);
+    auto su = timed("report.sulfation" + tag, sulfation, bare_recent, at_most(2.0, "<= 2x"));
+    su.limit_name = "last 13 per battery";
+    su.note = "bases kept between reports";
+    print_figure(su);
+    auto re = timed("report.replacement" + tag, replacement, bare_recent, at_most(2.0, "<= 2x"));
+    re.limit_name = "last 13 per battery";
+    print_figure(re);
     print_figure(timed("report.history", history, bare_history, below(0.020, "< 20 ms")));
   }
   Daemon daemon(o.pbfleetd, db.file, o.cache / "pbfleetd-report.log");
   HttpClient client("127.0.0.1", daemon.port());
   client.set_token(token);
   const long idle_kb = daemon.status_kb("VmHWM");
-  const double winter_http = http_seconds(client, "/v1/reports/winter?on=2026-12-14", o.repeat);
+  const double winter_http = http_uncached_seconds(client, o.repeat);
   const long peak_kb = daemon.status_kb("VmHWM");
+  // The same report again with no new data: from the report cache.
+  const std::string again = "/v1/reports/winter?on=2027-01-05";
+  const auto first_start = SteadyClock::now();
+  if (client.send("GET", again).status != 200) std::exit((std::fprintf(stderr, "GET %s failed\n", again.c_str()), 1));
+  const double first = seconds_since(first_start);
+  const double cached = http_seconds(client, again, std::max(o.repeat, 5));
   const double history_http = http_seconds(client, history_target, o.repeat);
-  print_figure(timed("report.winter" + tag + ".http", winter_http, bare_winter, below(1.0, "< 1 s")));
+  auto wh = timed("report.winter" + tag + ".http", winter_http, bare_latest, at_most(5.0, "<= 5x"));
+  wh.limit_name = "latest reading/battery";
+  wh.note = "every request built (cold date varied)";
+  print_figure(wh);
+  print_figure({"report.winter" + tag + ".cached.http", cached * 1000, "ms", "first request", first * 1000, "ms",
+                first / cached, at_least(20.0, ">= 20x"), {}, "ratio = first / cached"});
   print_figure(timed("report.history.http", history_http, bare_history, below(0.020, "< 20 ms")));
   Figure mem{"memory.winter" + tag + ".http", peak_kb / 1024.0, "MB peak RSS", "pbfleetd after start",
              idle_kb / 1024.0, "MB", static_cast<double>(peak_kb) / static_cast<double>(idle_kb),
              below(500, "< 500 MB"), peak_kb / 1024.0, "VmHWM across the report"};
   print_figure(mem);
+}
+
+// The winter report on the same fleet with a short and a long history per
+// battery: reading summaries keep it from growing with history.
+void history_growth(const Options& o) {
+  std::vector<double> times;
+  for (const int weeks : o.growth_weeks) {
+    const FleetDb db = fleet_db(o.cache, o.growth_batteries, weeks);
+    open_store(db.file);  // summarises a database from an older binary once, untimed
+    auto store = open_store(db.file);
+    times.push_back(winter_in_process(*store, o.repeat));
+  }
+  const auto n = o.growth_weeks.size();
+  Figure f{"report.winter.history-growth." + std::to_string(o.growth_weeks[0]) + "-" +
+               std::to_string(o.growth_weeks[n - 1]) + "w",
+           times[n - 1] * 1000, "ms", std::to_string(o.growth_weeks[0]) + " readings/battery",
+           times[0] * 1000, "ms", times[n - 1] / times[0], at_most(1.2, "<= 1.2x"), {},
+           size_name(o.growth_batteries) + " batteries, in process"};
+  print_figure(f);
 }
 
 void scaling(const Options& o) {
@@ -204,6 +285,7 @@ int main(int argc, char** argv) {
   arm_watchdog(std::chrono::minutes{40}, kill_daemons);
   fs::create_directories(o.cache);
   reports(o);
+  history_growth(o);
   scaling(o);
   return 0;
 }

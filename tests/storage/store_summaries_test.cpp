@@ -77,7 +77,7 @@ class Readings {
 };
 
 // The reference: the look-back worked out from the raw readings.
-BatterySummary recomputed(Store& store, const Battery& battery) {
+analytics::WinterBasis recomputed(Store& store, const Battery& battery) {
   const auto stored = store.readings_for(battery.serial, std::nullopt, std::nullopt).value();
   std::vector<analytics::ReadingPoint> points;
   for (const auto& r : stored) points.push_back(point_of(static_cast<const ReadingInput&>(r)));
@@ -105,7 +105,7 @@ Tally check_all(Store& store) {
   Tally tally;
   for (const auto& [serial, summary] : kept) {
     CAPTURE(serial);
-    const BatterySummary want = recomputed(store, batteries[serial]);
+    const analytics::WinterBasis want = recomputed(store, batteries[serial]);
     CHECK(summary.latest_at == want.latest_at);
     CHECK(summary.recent == want.recent);
     REQUIRE(summary.trusted.has_value() == want.trusted.has_value());
@@ -225,6 +225,39 @@ STORE_TEST_CASE("the data version moves on with each stored reading and fleet ch
   CHECK(v2 > v1);
   REQUIRE(f.store->retire_battery("NY-0001", "worn out", at(6)).ok());
   CHECK(f.store->data_version().value() > v2);
+}
+
+}  // namespace pbfleet::storage
+
+namespace pbfleet::storage {
+
+STORE_TEST_CASE("a battery's summary revision moves on with each reading stored for it, and only then") {
+  Fleet<Backend> f;
+  REQUIRE(f.store->create_battery(Fleet<Backend>::make_battery("NY-0002", f.vehicle.id), at(0)).ok());
+  auto revisions = [&] {
+    std::map<std::string, std::int64_t> out;
+    REQUIRE(f.store->visit_summaries({}, [&](const Battery& b, const BatterySummary& s) { out[b.serial] = s.revision; }).ok());
+    return out;
+  };
+  const auto r0 = revisions();
+  REQUIRE(f.store->append_readings({testing::reading("v-1", "NY-0001", 9)}, at(10)).ok());
+  const auto r1 = revisions();
+  CHECK(r1.at("NY-0001") > r0.at("NY-0001"));
+  CHECK(r1.at("NY-0002") == r0.at("NY-0002"));
+  // An older reading (below the look-back's view of the summary) still counts.
+  REQUIRE(f.store->append_readings({testing::reading("v-2", "NY-0001", 1)}, at(10)).ok());
+  const auto r2 = revisions();
+  CHECK(r2.at("NY-0001") > r1.at("NY-0001"));
+  // A replay and a refused batch store nothing: no change.
+  REQUIRE(f.store->append_readings({testing::reading("v-2", "NY-0001", 1)}, at(11)).ok());
+  auto bad = testing::reading("v-3", "NO-SUCH", 2);
+  REQUIRE_FALSE(f.store->append_readings({testing::reading("v-4", "NY-0001", 3), bad}, at(11)).value().accepted());
+  const auto r3 = revisions();
+  // PostgreSQL undoes a refused batch by deleting its rows, which moves
+  // the revision on again; either way it never goes back.
+  CHECK(r3.at("NY-0001") >= r2.at("NY-0001"));
+  if constexpr (!Backend::kPostgres) CHECK(r3.at("NY-0001") == r2.at("NY-0001"));
+  CHECK(r3.at("NY-0002") == r0.at("NY-0002"));
 }
 
 }  // namespace pbfleet::storage

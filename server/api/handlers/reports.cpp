@@ -101,7 +101,7 @@ http::Response sulfation_report(const Call& call) {
   using Report = std::vector<analytics::SulfationAssessment>;
   return answer(
       call, trend_key("sulfation", depot),
-      [&] { return cached_sulfation_report(call.ctx.reports, call.ctx.store, depot, call.ctx.clock.now()); },
+      [&] { return cached_sulfation_report(call.ctx.reports, call.ctx.trends, call.ctx.store, depot, call.ctx.clock.now()); },
       [](const Report& r) { return sulfation_json(r); }, [](const Report& r) { return sulfation_csv(r); });
 }
 
@@ -112,7 +112,7 @@ http::Response replacement_report(const Call& call) {
   using Report = std::vector<analytics::ReplacementForecast>;
   return answer(
       call, trend_key("replacements", depot),
-      [&] { return cached_replacement_report(call.ctx.reports, call.ctx.store, depot, call.ctx.clock.now()); },
+      [&] { return cached_replacement_report(call.ctx.reports, call.ctx.trends, call.ctx.store, depot, call.ctx.clock.now()); },
       [](const Report& r) { return replacement_json(r); }, [](const Report& r) { return replacement_csv(r); });
 }
 

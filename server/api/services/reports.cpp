@@ -54,25 +54,27 @@ storage::StoreResult<analytics::WinterReport> build_winter_report(
 }
 
 storage::StoreResult<std::vector<analytics::SulfationAssessment>> build_sulfation_report(
-    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
-    const analytics::AnalyticsSettings& settings) {
+    storage::Store& store, TrendMemo& memo, std::optional<storage::Id> depot,
+    std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings) {
   std::vector<analytics::SulfationAssessment> out;
-  auto done = each_history(store, depot, kTrendLookback, [&](const analytics::BatteryHistory& h) {
-    out.push_back(analytics::assess_sulfation(h, now, settings));
-  });
+  auto done = memo.each(store, depot, kTrendLookback, settings,
+                        [&](const analytics::BatteryContext& battery, const analytics::SulfationBasis& basis) {
+                          out.push_back(analytics::assess_sulfation(battery, basis, now, settings));
+                        });
   if (!done) return done.error();
   analytics::sort_sulfation_report(out);
   return out;
 }
 
 storage::StoreResult<std::vector<analytics::ReplacementForecast>> build_replacement_report(
-    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
-    const analytics::AnalyticsSettings& settings) {
+    storage::Store& store, TrendMemo& memo, std::optional<storage::Id> depot,
+    std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings) {
   std::vector<analytics::ReplacementForecast> out;
-  auto done = each_history(store, depot, kTrendLookback, [&](const analytics::BatteryHistory& h) {
-    out.push_back(analytics::forecast_replacement(
-        h.battery, analytics::assess_sulfation(h, now, settings), now, settings));
-  });
+  auto done = memo.each(store, depot, kTrendLookback, settings,
+                        [&](const analytics::BatteryContext& battery, const analytics::SulfationBasis& basis) {
+                          out.push_back(analytics::forecast_replacement(
+                              battery, analytics::assess_sulfation(battery, basis, now, settings), now, settings));
+                        });
   if (!done) return done.error();
   analytics::sort_for_budget(out);
   return out;
@@ -116,9 +118,16 @@ storage::StoreResult<std::shared_ptr<const T>> through(ReportCache& cache, stora
 }  // namespace
 
 std::string winter_key(std::optional<storage::Id> depot, const analytics::ColdSpec& cold) {
-  std::string params = "on=" + std::to_string(cold.cold_date.time_since_epoch().count());
-  params += ";low=" + (cold.low ? number(cold.low->value) : std::string("depot"));
-  for (const auto& [id, low] : cold.depot_lows) params += ";" + std::to_string(id) + "=" + number(low.value);
+  std::string params = "on=";
+  params += std::to_string(cold.cold_date.time_since_epoch().count());
+  params += ";low=";
+  params += cold.low ? number(cold.low->value) : std::string("depot");
+  for (const auto& [id, low] : cold.depot_lows) {
+    params += ';';
+    params += std::to_string(id);
+    params += '=';
+    params += number(low.value);
+  }
   return report_key("winter", depot, params);
 }
 
@@ -139,19 +148,19 @@ storage::StoreResult<std::shared_ptr<const analytics::WinterReport>> cached_wint
 }
 
 storage::StoreResult<std::shared_ptr<const std::vector<analytics::SulfationAssessment>>>
-cached_sulfation_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
-                        std::chrono::sys_seconds now) {
+cached_sulfation_report(ReportCache& cache, TrendMemo& memo, storage::Store& store,
+                        std::optional<storage::Id> depot, std::chrono::sys_seconds now) {
   return through<std::vector<analytics::SulfationAssessment>>(
       cache, store, trend_key("sulfation", depot), now,
-      [&] { return build_sulfation_report(store, depot, now, {}); });
+      [&] { return build_sulfation_report(store, memo, depot, now, {}); });
 }
 
 storage::StoreResult<std::shared_ptr<const std::vector<analytics::ReplacementForecast>>>
-cached_replacement_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
-                          std::chrono::sys_seconds now) {
+cached_replacement_report(ReportCache& cache, TrendMemo& memo, storage::Store& store,
+                          std::optional<storage::Id> depot, std::chrono::sys_seconds now) {
   return through<std::vector<analytics::ReplacementForecast>>(
       cache, store, trend_key("replacements", depot), now,
-      [&] { return build_replacement_report(store, depot, now, {}); });
+      [&] { return build_replacement_report(store, memo, depot, now, {}); });
 }
 
 storage::StoreResult<std::shared_ptr<const std::vector<analytics::DepotOverdue>>> cached_overdue_report(

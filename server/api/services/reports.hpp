@@ -17,6 +17,7 @@
 #include "models/analytics/sulfation.hpp"
 #include "models/analytics/winter.hpp"
 #include "server/api/services/report_cache.hpp"
+#include "server/api/services/trend_memo.hpp"
 #include "server/storage/store.hpp"
 
 namespace pbfleet::api {
@@ -28,13 +29,16 @@ storage::StoreResult<analytics::WinterReport> build_winter_report(
     storage::Store& store, std::optional<storage::Id> depot, const analytics::ColdSpec& cold,
     std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings);
 
+// Sulfation and replacement judge each battery from its basis kept in
+// `memo` (trend_memo.hpp), built from its last kTrendLookback readings
+// when missing or stale.
 storage::StoreResult<std::vector<analytics::SulfationAssessment>> build_sulfation_report(
-    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
-    const analytics::AnalyticsSettings& settings);
+    storage::Store& store, TrendMemo& memo, std::optional<storage::Id> depot,
+    std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings);
 
 storage::StoreResult<std::vector<analytics::ReplacementForecast>> build_replacement_report(
-    storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now,
-    const analytics::AnalyticsSettings& settings);
+    storage::Store& store, TrendMemo& memo, std::optional<storage::Id> depot,
+    std::chrono::sys_seconds now, const analytics::AnalyticsSettings& settings);
 
 storage::StoreResult<std::vector<analytics::DepotOverdue>> build_overdue_report(
     storage::Store& store, std::optional<storage::Id> depot, std::chrono::sys_seconds now, int days);
@@ -51,11 +55,11 @@ storage::StoreResult<std::shared_ptr<const analytics::WinterReport>> cached_wint
     ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
     const analytics::ColdSpec& cold, std::chrono::sys_seconds now);
 storage::StoreResult<std::shared_ptr<const std::vector<analytics::SulfationAssessment>>>
-cached_sulfation_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
-                        std::chrono::sys_seconds now);
+cached_sulfation_report(ReportCache& cache, TrendMemo& memo, storage::Store& store,
+                        std::optional<storage::Id> depot, std::chrono::sys_seconds now);
 storage::StoreResult<std::shared_ptr<const std::vector<analytics::ReplacementForecast>>>
-cached_replacement_report(ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
-                          std::chrono::sys_seconds now);
+cached_replacement_report(ReportCache& cache, TrendMemo& memo, storage::Store& store,
+                          std::optional<storage::Id> depot, std::chrono::sys_seconds now);
 storage::StoreResult<std::shared_ptr<const std::vector<analytics::DepotOverdue>>> cached_overdue_report(
     ReportCache& cache, storage::Store& store, std::optional<storage::Id> depot,
     std::chrono::sys_seconds now, int days);

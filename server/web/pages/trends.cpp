@@ -80,8 +80,8 @@ http::Response trends(const PageCall& call) {
   std::vector<std::string> errors;
   const auto depot = depot_filter(call, errors);
   const auto now = call.ctx.clock.now();
-  auto sulfation = api::cached_sulfation_report(call.ctx.reports, call.ctx.store, depot, now);
-  auto replacement = api::cached_replacement_report(call.ctx.reports, call.ctx.store, depot, now);
+  auto sulfation = api::cached_sulfation_report(call.ctx.reports, call.ctx.trends, call.ctx.store, depot, now);
+  auto replacement = api::cached_replacement_report(call.ctx.reports, call.ctx.trends, call.ctx.store, depot, now);
   if (!sulfation || !replacement)
     return message_page(call, 503, "Sulfation and replacement", "The database is unavailable; try again shortly.");
   std::vector<std::string_view> cautions;
