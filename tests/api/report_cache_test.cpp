@@ -137,3 +137,40 @@ TEST_CASE("sulfation from kept bases equals a fresh build and rebuilds only what
 }
 
 }  // namespace pbfleet::api
+
+namespace pbfleet::api {
+
+TEST_CASE("a report answer carries an ETag, and asking with it gives 304 until the data changes") {
+  ApiFixture f;
+  auto get = [&](const std::string& target, const std::string& etag) {
+    http::Request r;
+    r.method = "GET";
+    r.target = target;
+    r.headers["authorization"] = "Bearer " + f.token("manager");
+    if (!etag.empty()) r.headers["if-none-match"] = etag;
+    return f.api().handle(r);
+  };
+  auto etag_of = [](const http::Response& r) {
+    for (const auto& [name, value] : r.headers)
+      if (name == "ETag") return value;
+    return std::string();
+  };
+  const auto first = get("/v1/reports/winter", "");
+  REQUIRE(first.status == 200);
+  const std::string tag = etag_of(first);
+  REQUIRE(tag.size() == 18);
+  const auto again = get("/v1/reports/winter", tag);
+  CHECK(again.status == 304);
+  CHECK(again.body.empty());
+  CHECK(etag_of(again) == tag);
+  // Another report or parameter has its own tag.
+  CHECK(get("/v1/reports/winter?low_c=-40", tag).status == 200);
+  CHECK(get("/v1/reports/overdue", tag).status == 200);
+  // New data: the old tag no longer matches.
+  REQUIRE(f.post("/v1/readings", good_reading("NY-0001", "etag-1"), "crew").status == 201);
+  const auto after = get("/v1/reports/winter", tag);
+  CHECK(after.status == 200);
+  CHECK(etag_of(after) != tag);
+}
+
+}  // namespace pbfleet::api

@@ -1,5 +1,7 @@
 #include "tests/bench/http_client.hpp"
 
+#include <utility>
+
 #include <boost/asio/connect.hpp>
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/tcp.hpp>
@@ -45,6 +47,7 @@ HttpReply HttpClient::send(std::string_view method, std::string_view target, std
   req.keep_alive(true);
   if (!impl_->authorization.empty()) req.set(bhttp::field::authorization, impl_->authorization);
   if (!body.empty()) req.set(bhttp::field::content_type, content_type);
+  if (!if_none_match_.empty()) req.set(bhttp::field::if_none_match, std::exchange(if_none_match_, {}));
   req.body() = std::move(body);
   req.prepare_payload();
 
@@ -56,7 +59,7 @@ HttpReply HttpClient::send(std::string_view method, std::string_view target, std
   bhttp::read(impl_->socket, impl_->buffer, parser, ec);
   if (ec) throw std::runtime_error("read: " + ec.message());
   auto res = parser.release();
-  return {static_cast<int>(res.result_int()), std::move(res.body())};
+  return {static_cast<int>(res.result_int()), std::move(res.body()), std::string(res[bhttp::field::etag])};
 }
 
 }  // namespace pbfleet::bench

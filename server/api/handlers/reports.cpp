@@ -1,5 +1,7 @@
 // GET /v1/reports/{winter,sulfation,replacements,overdue}: JSON, or CSV
 // with Accept: text/csv. A depot-scoped token sees its depot only.
+#include <cstdio>
+
 #include "server/api/handlers/common.hpp"
 #include "server/api/handlers/handlers.hpp"
 #include "server/api/report_codec.hpp"
@@ -35,23 +37,54 @@ bool report_depot(const Call& call, std::optional<storage::Id>& depot,
   return errors.empty();
 }
 
+// A strong validator for one rendered report: FNV-1a over the cache key
+// (report, scope, parameters, format) and the data version. Equal tags
+// mean the same bytes for as long as the cache would serve them.
+std::string report_etag(const std::string& key, std::int64_t version, std::chrono::sys_seconds now) {
+  std::uint64_t h = 1469598103934665603ull;
+  auto mix = [&](std::string_view text) {
+    for (const unsigned char c : text) h = (h ^ c) * 1099511628211ull;
+  };
+  mix(key);
+  mix("|" + std::to_string(version));
+  // Reports measure data ages against now: a tag lasts the minute at most.
+  mix("|" + std::to_string(now.time_since_epoch().count() / 60));
+  char text[24];
+  std::snprintf(text, sizeof text, "\"%016llx\"", static_cast<unsigned long long>(h));
+  return text;
+}
+
 // The report's body in the format asked for, rendered once per data
 // version and kept beside the report (report_cache.hpp). `report()` gives
-// the cached report, `json` and `csv` render it.
+// the cached report, `json` and `csv` render it. Answers carry an ETag; a
+// request whose If-None-Match names it gets 304 and no body.
 template <class Report, class Json, class Csv>
 http::Response answer(const Call& call, const std::string& key, Report&& report, Json&& json, Csv&& csv) {
   const bool as_csv = wants_csv(call.request);
   auto version = call.ctx.store.data_version();
   if (!version) return store_problem(version.error());
+  const std::string format_key = key + (as_csv ? "|csv" : "|json");
+  const std::string etag = report_etag(format_key, *version, call.ctx.clock.now());
+  const std::vector<std::pair<std::string, std::string>> validators{
+      {"ETag", etag}, {"Cache-Control", "private, no-cache"}};
+  if (call.request.header("if-none-match") == etag) {
+    http::Response not_modified;
+    not_modified.status = 304;
+    not_modified.content_type = as_csv ? "text/csv; charset=utf-8" : "application/json";
+    not_modified.headers = validators;
+    return not_modified;
+  }
   auto body = call.ctx.reports.get<std::string>(
-      key + (as_csv ? "|csv" : "|json"), *version, call.ctx.clock.now(),
+      format_key, *version, call.ctx.clock.now(),
       [&]() -> storage::StoreResult<std::string> {
         auto built = report();
         if (!built) return built.error();
         return as_csv ? std::string(csv(**built)) : std::string(json(**built));
       });
   if (!body) return store_problem(body.error());
-  return as_csv ? csv_response(**body) : json_text_response(200, **body);
+  http::Response r = as_csv ? csv_response(**body) : json_text_response(200, **body);
+  r.headers = validators;
+  return r;
 }
 
 http::Response bad_query(const std::vector<ProblemField>& errors) {
