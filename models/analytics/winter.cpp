@@ -108,14 +108,25 @@ void add_watch_reasons(const WinterRisk& r, double threshold_pct, const Analytic
   }
 }
 
-void choose_action(WinterRisk& r, double threshold_pct) {
+void choose_action(WinterRisk& r, double threshold_pct, const AnalyticsSettings& s) {
   if (r.replacement_expected) {
     r.action = "will not crank at the low even fully charged: fit a higher-rated battery or plan engine and battery heating before the cold date";
   } else if (r.level == RiskLevel::act_now || *r.projected_soc_percent < threshold_pct) {
     r.action = "recharge fully before the cold date, then take a settled reading";
     r.cautions.push_back(kChargeCaution);
   } else if (r.level == RiskLevel::watch) {
-    r.action = "take a settled reading (rest 4 h or more) on the next round";
+    // Say what to do about what made it a watch, most serious first: a
+    // fresh settled reading does not widen a thin crank margin.
+    if (r.crank_margin && *r.crank_margin < s.crank_watch_margin) {
+      r.action = "keep it fully charged and load-test it before the cold date; if it fails, fit a higher-rated battery";
+      r.cautions.push_back(kChargeCaution);
+      r.cautions.push_back(kLoadTestCaution);
+    } else if (r.freeze_margin_c && *r.freeze_margin_c < s.freeze_watch_margin_c) {
+      r.action = "keep it fully charged through the cold spell: a charged battery freezes far lower";
+      r.cautions.push_back(kChargeCaution);
+    } else {
+      r.action = "take a settled reading (rest 4 h or more) on the next round";
+    }
   } else {
     r.action = "none";
   }
@@ -239,7 +250,7 @@ WinterRisk assess_winter(const BatteryContext& battery, const WinterBasis& basis
   r.level = level_of(r, threshold, s);
   add_watch_reasons(r, threshold, s, r.reasons);
   note_staleness(r, s);
-  choose_action(r, threshold);
+  choose_action(r, threshold, s);
   return r;
 }
 

@@ -129,6 +129,23 @@ TEST_CASE("stale data is said and watched") {
   CHECK(*r.data_age_days == doctest::Approx(23.0));
   CHECK(any_reason_contains(r, "latest reading 23 days old"));
   CHECK(r.level == pa::RiskLevel::watch);
+  CHECK(r.action == "take a settled reading (rest 4 h or more) on the next round");
+  CHECK(r.cautions.empty());
+}
+
+TEST_CASE("a thin crank margin on a fresh settled reading asks for a load test, not another reading") {
+  // 800 A rated, 500 A needed at -18 C: fully charged at -25 C it keeps a
+  // margin between 1 and the 1.25 watch line (common practice headroom).
+  const auto b = flooded_battery("NY-010", 800.0, 500.0);
+  const std::vector readings{reading_from_truth(days_before_now(1), Truth{.cell_sg = 1.265})};
+  const auto r = judge(b, readings, cold_in(3));
+  REQUIRE(r.crank_margin);
+  CHECK(*r.crank_margin >= 1.0);
+  CHECK(*r.crank_margin < kSettings.crank_watch_margin);
+  CHECK(r.level == pa::RiskLevel::watch);
+  CHECK(r.action.find("load-test") != std::string::npos);
+  REQUIRE(r.cautions.size() == 2);
+  CHECK(r.cautions[1] == pa::kLoadTestCaution);
 }
 
 TEST_CASE("self-discharge at 80 F matches the Army's 0.001 SG per day") {
