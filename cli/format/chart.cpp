@@ -12,19 +12,19 @@ namespace {
 constexpr int kEighths = 8;            // sub-steps per character cell
 constexpr int kMaxColumnsPerReading = 3;  // few readings: widen each bar
 
-struct Column {
+struct BarColumn {
   double value = NAN;
   bool flagged = false;
 };
 
 // Groups readings into at most `slots` columns, keeping each group's lowest value.
-std::vector<Column> group(const ChartSeries& s, std::size_t slots) {
+std::vector<BarColumn> group(const ChartSeries& s, std::size_t slots) {
   const std::size_t n = s.values.size();
-  std::vector<Column> cols;
+  std::vector<BarColumn> cols;
   if (n == 0 || slots == 0) return cols;
   const std::size_t count = std::min(n, slots);
   for (std::size_t j = 0; j < count; ++j) {
-    Column c;
+    BarColumn c;
     for (std::size_t i = j * n / count; i < (j + 1) * n / count; ++i) {
       if (!std::isnan(s.values[i]) && (std::isnan(c.value) || s.values[i] < c.value)) c.value = s.values[i];
       if (i < s.flagged.size() && s.flagged[i]) c.flagged = true;
@@ -100,7 +100,7 @@ std::string render_chart(const ChartSeries& s, bool unicode, int width, int heig
   }
   out += dates + "\n";
 
-  if (std::any_of(cols.begin(), cols.end(), [](const Column& c) { return c.flagged; })) {
+  if (std::any_of(cols.begin(), cols.end(), [](const BarColumn& c) { return c.flagged; })) {
     const std::string mark = unicode ? "▲" : "^";
     std::string marks(label_w + 2, ' ');
     for (const auto& c : cols) {

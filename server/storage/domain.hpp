@@ -18,6 +18,12 @@
 
 namespace pbfleet::storage {
 
+// The number inside an optional quantity (Volts, Hours, ...), for a column.
+template <class Q>
+std::optional<double> raw(const std::optional<Q>& q) {
+  return q ? std::optional<double>(q->value) : std::nullopt;
+}
+
 // Row identity assigned by the store; never reused.
 using Id = std::int64_t;
 

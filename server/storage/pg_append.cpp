@@ -40,11 +40,6 @@ using Tx = pqxx::transaction_base;
 
 constexpr std::size_t kLoadChunk = 5000;  // rows per INSERT in the bulk load
 
-template <class Q>
-std::optional<double> raw(const std::optional<Q>& q) {
-  return q ? std::optional<double>(q->value) : std::nullopt;
-}
-
 std::optional<double> temperature(const std::optional<models::wire::EnteredTemperature>& t) {
   return t ? std::optional<double>(t->value.value) : std::nullopt;
 }

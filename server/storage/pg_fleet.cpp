@@ -12,11 +12,6 @@ namespace {
 using std::chrono::sys_seconds;
 using Tx = pqxx::transaction_base;
 
-template <class Q>
-std::optional<double> raw(const std::optional<Q>& q) {
-  return q ? std::optional<double>(q->value) : std::nullopt;
-}
-
 // Runs an INSERT/UPDATE returning the row id, turning a unique-key clash
 // into a readable conflict.
 template <class... Args>

@@ -25,11 +25,6 @@ constexpr std::string_view kInsertReading =
     " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, "
     "?19, ?20, ?21) ON CONFLICT (reading_id) DO NOTHING";
 
-template <class Q>
-std::optional<double> raw(const std::optional<Q>& q) {
-  return q ? std::optional<double>(q->value) : std::nullopt;
-}
-
 void bind_temperature(Statement& s, int index,
                       const std::optional<models::wire::EnteredTemperature>& t) {
   if (!t) return;

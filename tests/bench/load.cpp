@@ -1,6 +1,8 @@
 #include "tests/bench/load.hpp"
 
+#include <algorithm>
 #include <atomic>
+#include <cmath>
 #include <boost/asio/co_spawn.hpp>
 #include <boost/asio/detached.hpp>
 #include <boost/asio/io_context.hpp>
@@ -33,7 +35,12 @@ struct Shared {
   std::atomic<bool> failed{false};
   std::mutex mutex;
   std::string error;
+  std::vector<double> latencies_s;
 
+  void keep(const std::vector<double>& mine) {
+    std::lock_guard lock(mutex);
+    latencies_s.insert(latencies_s.end(), mine.begin(), mine.end());
+  }
   void fail(std::string what) {
     std::lock_guard lock(mutex);
     if (error.empty()) error = std::move(what);
@@ -65,9 +72,11 @@ asio::awaitable<void> connection(Shared& s) {
   co_await stream.async_connect({asio::ip::make_address("127.0.0.1"), s.spec.port}, asio::use_awaitable);
   stream.socket().set_option(asio::ip::tcp::no_delay(true));
   beast::flat_buffer buffer;
+  std::vector<double> latencies_s;
   for (std::size_t i = 0; s.take(i);) {
     auto req = make_request(s, s.spec.make(i));
     stream.expires_after(kRequestTimeout);
+    const auto sent = SteadyClock::now();
     co_await bhttp::async_write(stream, req, asio::use_awaitable);
     bhttp::response<bhttp::string_body> res;
     co_await bhttp::async_read(stream, buffer, res, asio::use_awaitable);
@@ -76,8 +85,10 @@ asio::awaitable<void> connection(Shared& s) {
              res.body().substr(0, 300));
       break;
     }
+    latencies_s.push_back(seconds_since(sent));
     ++s.done;
   }
+  s.keep(latencies_s);
   beast::error_code ignored;
   stream.socket().shutdown(asio::ip::tcp::socket::shutdown_both, ignored);
 }
@@ -104,7 +115,15 @@ LoadResult run_load(const LoadSpec& spec) {
   std::vector<std::thread> threads;
   for (int t = 0; t < spec.threads; ++t) threads.emplace_back([&] { client_thread(shared); });
   for (auto& t : threads) t.join();
-  return {shared.done.load(), seconds_since(shared.start), shared.error};
+  return {shared.done.load(), seconds_since(shared.start), shared.error, std::move(shared.latencies_s)};
+}
+
+double LoadResult::percentile_s(double p) const {
+  if (latencies_s.empty()) return 0.0;
+  std::vector<double> sorted = latencies_s;
+  std::sort(sorted.begin(), sorted.end());
+  const auto rank = static_cast<std::size_t>(std::ceil(p / 100.0 * static_cast<double>(sorted.size())));
+  return sorted[std::clamp<std::size_t>(rank, 1, sorted.size()) - 1];
 }
 
 }  // namespace pbfleet::bench

@@ -8,6 +8,7 @@
 #include <cstdint>
 #include <functional>
 #include <string>
+#include <vector>
 
 namespace pbfleet::bench {
 
@@ -33,7 +34,10 @@ struct LoadResult {
   std::size_t requests = 0;  // answered as expected
   double seconds = 0.0;
   std::string error;         // first failure; empty when none
+  std::vector<double> latencies_s;  // each answered request, write to last byte read (unsorted)
   [[nodiscard]] double rate() const { return seconds > 0 ? requests / seconds : 0.0; }
+  // The p-th percentile (0 < p <= 100, nearest rank) of the latencies; 0 when none.
+  [[nodiscard]] double percentile_s(double p) const;
 };
 
 LoadResult run_load(const LoadSpec& spec);

@@ -8,7 +8,11 @@
 //              rows; the winter report asked twice (report cache); and the
 //              winter report at G batteries with W3 and W4 readings each
 //              (it must not grow with history);
-//   memory.*   peak RSS (VmHWM) of pbfleetd across the winter report over HTTP;
+//   report.history.http.16.*  one battery's history over HTTP with 16
+//              clients asking at once (a different battery each time; S
+//              seconds), p50 and p99 latency;
+//   memory.*   peak RSS (VmHWM) of pbfleetd across the winter report over
+//              HTTP, at B batteries and at the largest scaling size;
 //   scale.*    the winter report at each fleet size of a series, and its
 //              growth from the second-largest to the largest size against
 //              linear growth.
@@ -17,6 +21,7 @@
 //   bench_report --pbfleetd PATH --cache DIR [--batteries B] [--weeks W]
 //                [--scaling 1000,10000,50000] [--scaling-weeks W2]
 //                [--growth-batteries G] [--growth-weeks W3,W4] [--repeat R]
+//                [--load-seconds S]
 #include <algorithm>
 #include <cstdio>
 #include <cstdlib>
@@ -33,6 +38,7 @@
 #include "tests/bench/figure.hpp"
 #include "tests/bench/fleet_db.hpp"
 #include "tests/bench/http_client.hpp"
+#include "tests/bench/load.hpp"
 #include "tests/bench/raw_sqlite.hpp"
 
 namespace {
@@ -50,7 +56,10 @@ struct Options {
   int growth_batteries = 10'000;
   std::vector<int> growth_weeks{52, 520};
   int repeat = 3;
+  double load_seconds = 3.0;  // history under concurrent load
 };
+
+constexpr int kHistoryClients = 16;
 
 std::vector<int> parse_list(const std::string& text) {
   std::vector<int> out;
@@ -77,12 +86,14 @@ Options parse(int argc, char** argv) {
     else if (key == "--growth-batteries") o.growth_batteries = std::stoi(value);
     else if (key == "--growth-weeks") o.growth_weeks = parse_list(value);
     else if (key == "--repeat") o.repeat = std::max(1, std::stoi(value));
+    else if (key == "--load-seconds") o.load_seconds = std::stod(value);
     else { std::fprintf(stderr, "unknown option %s\n", key.c_str()); std::exit(2); }
   }
   if (o.pbfleetd.empty() || o.cache.empty() || o.scaling.size() < 2 || o.growth_weeks.size() < 2) {
     std::fprintf(stderr, "usage: bench_report --pbfleetd PATH --cache DIR [--batteries B] "
                          "[--weeks W] [--scaling A,B,...] [--scaling-weeks W2] "
-                         "[--growth-batteries G] [--growth-weeks W3,W4] [--repeat R]\n");
+                         "[--growth-batteries G] [--growth-weeks W3,W4] [--repeat R] "
+                         "[--load-seconds S]\n");
     std::exit(2);
   }
   return o;
@@ -153,6 +164,27 @@ double http_uncached_seconds(HttpClient& client, int repeat) {
       std::exit((std::fprintf(stderr, "GET %s: %d %.300s\n", target.c_str(), reply.status,
                               reply.body.c_str()), 1));
   });
+}
+
+// One battery's history over HTTP from kHistoryClients connections at once,
+// each request for one of 64 batteries spread over the fleet.
+LoadResult history_under_load(const Options& o, std::uint16_t port, const std::string& token,
+                              const FleetDb& db) {
+  std::vector<std::string> targets;
+  for (int i = 0; i < 64; ++i)
+    targets.push_back("/v1/batteries/" + serial_with_id(db.file, 1 + (i * db.batteries) / 64) + "/history");
+  LoadSpec spec;
+  spec.port = port;
+  spec.token = token;
+  spec.threads = 2;
+  spec.connections_per_thread = kHistoryClients / spec.threads;
+  spec.limit = 1'000'000;
+  spec.seconds = o.load_seconds;
+  spec.make = [&](std::size_t i) { return LoadRequest{"GET", targets[i % targets.size()], {}, {}}; };
+  LoadResult result = run_load(spec);
+  if (!result.error.empty() || result.requests == 0)
+    std::exit((std::fprintf(stderr, "history under load: %s\n", result.error.c_str()), 1));
+  return result;
 }
 
 void reports(const Options& o) {
@@ -245,6 +277,7 @@ void reports(const Options& o) {
       std::exit((std::fprintf(stderr, "GET %s with If-None-Match: not 304\n", again.c_str()), 1));
   });
   const double history_http = http_seconds(client, history_target, o.repeat);
+  const LoadResult history_load = history_under_load(o, daemon.port(), token, db);
   auto wh = timed("report.winter" + tag + ".http", winter_http, bare_latest, at_most(5.0, "<= 5x"));
   wh.limit_name = "latest reading/battery";
   wh.note = "every request built (cold date varied)";
@@ -255,10 +288,37 @@ void reports(const Options& o) {
                 first * 1000, "ms", first / revalidated, at_least(20.0, ">= 20x"), {},
                 "ratio = first / 304 answer (If-None-Match)"});
   print_figure(timed("report.history.http", history_http, bare_history, below(0.020, "< 20 ms")));
+  const std::string clients = std::to_string(kHistoryClients) + " clients, " +
+                              std::to_string(history_load.requests) + " requests";
+  auto p50 = timed("report.history.http.16.p50", history_load.percentile_s(50), bare_history,
+                   below(0.005, "<= 5 ms"));
+  p50.note = clients;
+  print_figure(p50);
+  auto p99 = timed("report.history.http.16.p99", history_load.percentile_s(99), bare_history,
+                   below(0.015, "<= 15 ms"));
+  p99.note = clients;
+  print_figure(p99);
   Figure mem{"memory.winter" + tag + ".http", peak_kb / 1024.0, "MB peak RSS", "pbfleetd after start",
              idle_kb / 1024.0, "MB", static_cast<double>(peak_kb) / static_cast<double>(idle_kb),
-             below(500, "< 500 MB"), peak_kb / 1024.0, "VmHWM across the report"};
+             below(300, "< 300 MB"), peak_kb / 1024.0, "VmHWM across the report"};
   print_figure(mem);
+}
+
+// Peak RSS of a pbfleetd started on `db` across one winter report over HTTP.
+void winter_memory(const fs::path& pbfleetd, const FleetDb& db, storage::Store& store,
+                   const fs::path& log) {
+  const std::string token = admin_token(store);
+  Daemon daemon(pbfleetd, db.file, log);
+  HttpClient client("127.0.0.1", daemon.port());
+  client.set_token(token);
+  const long idle_kb = daemon.status_kb("VmHWM");
+  if (client.send("GET", "/v1/reports/winter").status != 200)
+    std::exit((std::fprintf(stderr, "winter report at %d batteries failed\n", db.batteries), 1));
+  const long peak_kb = daemon.status_kb("VmHWM");
+  print_figure({"memory.winter." + size_name(db.batteries) + ".http", peak_kb / 1024.0, "MB peak RSS",
+                "pbfleetd after start", idle_kb / 1024.0, "MB",
+                static_cast<double>(peak_kb) / static_cast<double>(idle_kb), below(300, "< 300 MB"),
+                peak_kb / 1024.0, std::to_string(db.weeks) + " readings per battery"});
 }
 
 // The winter report on the same fleet with a short and a long history per
@@ -291,6 +351,7 @@ void scaling(const Options& o) {
     auto f = timed("scale.winter." + size_name(batteries), times.back(), bare);
     f.note = std::to_string(o.scaling_weeks) + " readings per battery";
     print_figure(f);
+    if (batteries == o.scaling.back()) winter_memory(o.pbfleetd, db, *store, o.cache / "pbfleetd-scale.log");
   }
   const auto n = o.scaling.size();
   const double size_ratio = static_cast<double>(o.scaling[n - 1]) / o.scaling[n - 2];

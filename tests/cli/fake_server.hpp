@@ -60,4 +60,7 @@ inline std::chrono::sys_seconds test_now() {
   return sys_days{year{2026} / December / 1} + hours{12};
 }
 
+// The seams of a command run against `server` at test_now().
+inline Seams seams(FakeServer& server) { return {server.transport(), test_now}; }
+
 }  // namespace pbfleet::cli::testing

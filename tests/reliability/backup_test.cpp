@@ -16,7 +16,7 @@ namespace {
 
 using nlohmann::json;
 
-constexpr int kWriters = 8;
+constexpr int kWritersDuringBackup = 8;
 constexpr int kBatch = 10;
 constexpr int kBackups = 3;
 
@@ -28,7 +28,7 @@ TEST_CASE("an online backup taken under write load is consistent and can be serv
   std::atomic<int> acknowledged_batches{0};
   std::atomic<int> failures{0};
   std::vector<std::thread> writers;
-  for (int w = 0; w < kWriters; ++w) {
+  for (int w = 0; w < kWritersDuringBackup; ++w) {
     writers.emplace_back([&, w] {
       auto client = fleet.client("crew");
       const auto& serials = fleet.serials(w % 2 ? "North Yard" : "Harbour");

@@ -140,11 +140,6 @@ std::vector<BadCase> cases() {
   return c;
 }
 
-std::int64_t stored(const LiveFleet& fleet) {
-  SqliteProbe db(fleet.db());
-  return db.integer("SELECT count(*) FROM readings");
-}
-
 }  // namespace
 
 TEST_CASE("bad readings are refused with a problem naming the field, and nothing is stored") {
@@ -156,13 +151,13 @@ TEST_CASE("bad readings are refused with a problem naming the field, and nothing
     CAPTURE(bad.name);
     auto reply = crew.send("POST", "/v1/readings", bad.body, bad.content_type);
     CHECK(problem_mismatch(reply, bad.status, bad.slug, bad.field) == "");
-    CHECK(stored(fleet) == 0);
+    CHECK(stored_readings(fleet) == 0);
   }
   // The good reading the cases start from is accepted (the table is not
   // refusing everything for one shared reason).
   auto good = crew.post("/v1/readings", base());
   CHECK_MESSAGE(good.status == 201, good.body);
-  CHECK(stored(fleet) == 1);
+  CHECK(stored_readings(fleet) == 1);
 }
 
 TEST_CASE("SQL meta characters and Unicode in text fields are stored verbatim and harm nothing") {

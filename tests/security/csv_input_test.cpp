@@ -19,11 +19,6 @@ std::string row(const std::string& id, const std::string& serial = "NY-0001",
   return id + "," + serial + ",2026-01-05T06:00:00Z,12.62," + cells + ",41F,\"round, north\"";
 }
 
-std::int64_t stored(const LiveFleet& fleet) {
-  SqliteProbe db(fleet.db());
-  return db.integer("SELECT count(*) FROM readings");
-}
-
 // The problem's errors[] holds an entry for `field` (and `row` when > 0).
 bool names(const HttpReply& reply, const std::string& field, int row_number) {
   for (const auto& e : reply.json().value("errors", json::array()))
@@ -79,7 +74,7 @@ TEST_CASE("broken CSV is refused naming the column and row, and nothing is store
     auto reply = crew.send("POST", "/v1/readings", c.doc, "text/csv");
     CHECK(problem_mismatch(reply, c.status, c.slug) == "");
     if (!c.field.empty() || c.row > 0) CHECK_MESSAGE(names(reply, c.field, c.row), reply.body);
-    CHECK(stored(fleet) == 0);
+    CHECK(stored_readings(fleet) == 0);
   }
 }
 

@@ -163,4 +163,9 @@ std::string SqliteProbe::integrity() {
   return out;
 }
 
+std::int64_t stored_readings(const LiveFleet& fleet) {
+  SqliteProbe db(fleet.db());
+  return db.integer("SELECT count(*) FROM readings");
+}
+
 }  // namespace pbfleet::testing

@@ -93,4 +93,7 @@ class SqliteProbe {
   ::sqlite3* db_ = nullptr;
 };
 
+// Readings in a fleet's database file, counted directly (not through the API).
+std::int64_t stored_readings(const LiveFleet& fleet);
+
 }  // namespace pbfleet::testing

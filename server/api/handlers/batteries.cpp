@@ -7,7 +7,7 @@ namespace pbfleet::api::handlers {
 
 namespace {
 
-std::variant<storage::Battery, http::Response> decode(const Call& call, storage::Battery into,
+std::variant<storage::Battery, http::Response> decode_battery(const Call& call, storage::Battery into,
                                                       bool creating) {
   return decode_object<storage::Battery>(
       call, std::move(into),
@@ -64,7 +64,7 @@ http::Response list_batteries(const Call& call) {
 http::Response create_battery(const Call& call) {
   storage::Battery fresh;
   fresh.installed_on = std::chrono::floor<std::chrono::days>(call.ctx.clock.now());
-  auto battery = decode(call, fresh, true);
+  auto battery = decode_battery(call, fresh, true);
   if (auto* refused = std::get_if<http::Response>(&battery)) return std::move(*refused);
   auto& b = std::get<storage::Battery>(battery);
   if (b.vehicle_id && call.caller && call.caller->depot_id) {
@@ -85,7 +85,7 @@ http::Response get_battery(const Call& call) {
 http::Response patch_battery(const Call& call) {
   auto current = visible_battery(call);
   if (auto* refused = std::get_if<http::Response>(&current)) return std::move(*refused);
-  auto battery = decode(call, std::get<storage::Battery>(current), false);
+  auto battery = decode_battery(call, std::get<storage::Battery>(current), false);
   if (auto* refused = std::get_if<http::Response>(&battery)) return std::move(*refused);
   return render(call.ctx.store.update_battery(std::get<storage::Battery>(battery)));
 }

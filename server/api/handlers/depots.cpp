@@ -6,7 +6,7 @@ namespace pbfleet::api::handlers {
 
 namespace {
 
-std::variant<storage::Depot, http::Response> decode(const Call& call, storage::Depot into,
+std::variant<storage::Depot, http::Response> decode_depot(const Call& call, storage::Depot into,
                                                     bool creating) {
   return decode_object<storage::Depot>(
       call, std::move(into),
@@ -23,7 +23,7 @@ http::Response list_depots(const Call& call) {
 }
 
 http::Response create_depot(const Call& call) {
-  auto depot = decode(call, {}, true);
+  auto depot = decode_depot(call, {}, true);
   if (auto* refused = std::get_if<http::Response>(&depot)) return std::move(*refused);
   return render(call.ctx.store.create_depot(std::get<storage::Depot>(depot)), 201);
 }
@@ -39,7 +39,7 @@ http::Response patch_depot(const Call& call) {
   if (!id || !in_scope(call, id)) return bad_id("depot", call.param("id"));
   auto current = call.ctx.store.get_depot(*id);
   if (!current) return store_problem(current.error());
-  auto depot = decode(call, current.value(), false);
+  auto depot = decode_depot(call, current.value(), false);
   if (auto* refused = std::get_if<http::Response>(&depot)) return std::move(*refused);
   return render(call.ctx.store.update_depot(std::get<storage::Depot>(depot)));
 }

@@ -6,7 +6,7 @@ namespace pbfleet::api::handlers {
 
 namespace {
 
-std::variant<storage::Vehicle, http::Response> decode(const Call& call, storage::Vehicle into,
+std::variant<storage::Vehicle, http::Response> decode_vehicle(const Call& call, storage::Vehicle into,
                                                       bool creating) {
   return decode_object<storage::Vehicle>(
       call, std::move(into),
@@ -34,7 +34,7 @@ http::Response list_vehicles(const Call& call) {
 }
 
 http::Response create_vehicle(const Call& call) {
-  auto vehicle = decode(call, {}, true);
+  auto vehicle = decode_vehicle(call, {}, true);
   if (auto* refused = std::get_if<http::Response>(&vehicle)) return std::move(*refused);
   auto& v = std::get<storage::Vehicle>(vehicle);
   if (!in_scope(call, v.depot_id))
@@ -57,7 +57,7 @@ http::Response patch_vehicle(const Call& call) {
   auto current = call.ctx.store.get_vehicle(*id);
   if (!current) return store_problem(current.error());
   if (!in_scope(call, current->depot_id)) return bad_id("vehicle", call.param("id"));
-  auto vehicle = decode(call, current.value(), false);
+  auto vehicle = decode_vehicle(call, current.value(), false);
   if (auto* refused = std::get_if<http::Response>(&vehicle)) return std::move(*refused);
   return render(call.ctx.store.update_vehicle(std::get<storage::Vehicle>(vehicle)));
 }

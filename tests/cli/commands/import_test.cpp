@@ -43,7 +43,7 @@ client::HttpResponse accept_all(const HttpRequest& r) {
   return testing::json_response(201, Json{{"stored", n}, {"replayed", 0}, {"readings", Json::array()}}.dump());
 }
 
-Seams seams(testing::FakeServer& s) { return {s.transport(), testing::test_now}; }
+using testing::seams;
 
 }  // namespace
 

@@ -21,7 +21,7 @@ testing::FakeServer store_server(const char* flags = R"(["ocv_unsettled"])", boo
   });
 }
 
-Seams seams(testing::FakeServer& server) { return {server.transport(), testing::test_now}; }
+using testing::seams;
 
 }  // namespace
 

@@ -19,7 +19,7 @@ testing::FakeServer echo_server() {
   });
 }
 
-Seams seams(testing::FakeServer& s) { return {s.transport(), testing::test_now}; }
+using testing::seams;
 
 }  // namespace
 
