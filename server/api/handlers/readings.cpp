@@ -8,6 +8,7 @@
 #include "server/api/handlers/common.hpp"
 #include "server/api/handlers/handlers.hpp"
 #include "server/api/reading_codec.hpp"
+#include "server/api/reading_stream.hpp"
 #include "server/api/services/analytics_adapter.hpp"
 #include "server/api/services/reading_intake.hpp"
 
@@ -24,7 +25,20 @@ struct Parsed {
   FieldNamer name;
 };
 
+// Problems in item i of a batch are named "/i/field"; in a single reading "/field".
+FieldNamer json_namer(bool batch) {
+  return [batch](std::size_t i, const std::string& field) {
+    return ProblemField{(batch ? "/" + std::to_string(i) : std::string{}) + "/" + field, {}, {}, {}};
+  };
+}
+
 std::variant<Parsed, http::Response> parse_json(const Call& call) {
+  // The plain shape in one SAX pass (reading_stream.hpp); anything else
+  // through the tree, which words the problems.
+  if (media_type(call.request.header("content-type")) == "application/json") {
+    if (auto streamed = stream_readings(call.request.body))
+      return Parsed{std::move(streamed->readings), json_namer(streamed->batch)};
+  }
   auto body = json_body(call.request);
   if (auto* refused = std::get_if<http::Response>(&body)) return std::move(*refused);
   const json& doc = std::get<json>(body);
@@ -41,9 +55,7 @@ std::variant<Parsed, http::Response> parse_json(const Call& call) {
     read_one(doc, "");
   }
   if (!issues.empty()) return issues.to_problem();
-  out.name = [batch](std::size_t i, const std::string& field) {
-    return ProblemField{(batch ? "/" + std::to_string(i) : std::string{}) + "/" + field, {}, {}, {}};
-  };
+  out.name = json_namer(batch);
   return out;
 }
 
