@@ -30,6 +30,8 @@ struct BatterySpec {
   Amperes rated_cca{0.0};                 // SAE J537 at -18 degC; 0 = unknown
   std::optional<double> reserve_capacity_min;  // minutes at 25 A, 27 degC
   std::optional<double> capacity_ah;           // 20 h rate
+
+  bool operator==(const BatterySpec&) const = default;
 };
 
 // Default spec for a chemistry and cell count (full / discharged SG per

@@ -74,15 +74,17 @@ BatteryRefs battery_refs(Tx& tx, const std::vector<std::string>& serials) {
 // One array per readings column, in the INSERT's column order.
 class Columns {
  public:
-  void add(const ReadingInput& r, const BatteryRef& battery, sys_seconds now, const ContentHash& hash) {
+  void add(const PreparedReading& prepared, const BatteryRef& battery, sys_seconds now) {
+    const ReadingInput& r = prepared.input;
+    const ContentHash& hash = prepared.hash;
     const Id battery_id = battery.id;
-    const ReadingFacts facts = facts_of(battery.spec, point_of(r));
+    const ReadingFacts facts = facts_for(prepared, battery.spec);
     c_[0].text(r.reading_id);
     c_[1].integer(battery_id);
     c_[2].integer(to_db(r.taken_at));
     c_[3].integer(to_db(now));
     c_[4].number(raw(r.ocv));
-    c_[5].text(encode_cell_sg(r.cell_sg));
+    c_[5].text(prepared.cell_sg_text);
     c_[6].number(temperature(r.electrolyte));
     c_[7].opt_text(unit(r.electrolyte));
     c_[8].number(temperature(r.ambient));
@@ -130,9 +132,8 @@ RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
 
 // One row of a batch after the in-memory checks.
 struct Row {
-  ReadingInput input;
+  PreparedReading prepared;
   const BatteryRef* battery = nullptr;
-  ContentHash hash{};
   std::optional<std::size_t> same_as;  // an earlier row of the batch with this id and content
   bool problem = false;
 };
@@ -144,33 +145,32 @@ struct BatchWork {
 };
 
 // Step 2: every row of one batch checked in memory.
-BatchWork check_batch(const std::vector<ReadingInput>& batch, const BatteryRefs& batteries) {
+BatchWork check_batch(std::vector<PreparedReading>& batch, const BatteryRefs& batteries) {
   BatchWork w;
   w.rows.resize(batch.size());
   std::unordered_map<std::string, std::size_t> first;  // reading_id -> row
   for (std::size_t i = 0; i < batch.size(); ++i) {
     Row& row = w.rows[i];
-    row.input = batch[i];
-    const auto battery = batteries.find(row.input.serial);
+    row.prepared = std::move(batch[i]);
+    const auto battery = batteries.find(row.prepared.input.serial);
     if (battery == batteries.end()) {
       w.problems.push_back({i, StoreErrc::not_found, "serial",
-                            "no battery with serial '" + row.input.serial + "'"});
+                            "no battery with serial '" + row.prepared.input.serial + "'"});
       row.problem = true;
       continue;
     }
     row.battery = &battery->second;
-    row.hash = content_hash(row.input);
-    if (row.input.reading_id.empty()) row.input.reading_id = new_reading_id();
-    if (auto it = first.find(row.input.reading_id); it != first.end()) {
-      if (w.rows[it->second].hash == row.hash) {
+    if (row.prepared.input.reading_id.empty()) row.prepared.input.reading_id = new_reading_id();
+    if (auto it = first.find(row.prepared.input.reading_id); it != first.end()) {
+      if (w.rows[it->second].prepared.hash == row.prepared.hash) {
         row.same_as = it->second;
       } else {
-        w.problems.push_back(conflict_problem(i, row.input.reading_id));
+        w.problems.push_back(conflict_problem(i, row.prepared.input.reading_id));
         row.problem = true;
       }
       continue;
     }
-    first.emplace(row.input.reading_id, i);
+    first.emplace(row.prepared.input.reading_id, i);
   }
   return w;
 }
@@ -207,7 +207,7 @@ bool reading_id_in_two_batches(const std::vector<BatchWork>& work) {
   for (std::size_t b = 0; b < work.size(); ++b) {
     for (const Row& row : work[b].rows) {
       if (row.problem || row.same_as) continue;
-      auto [it, fresh] = owner.emplace(row.input.reading_id, b);
+      auto [it, fresh] = owner.emplace(row.prepared.input.reading_id, b);
       if (!fresh && it->second != b) return true;
     }
   }
@@ -220,27 +220,27 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
   for (const BatchWork& w : work) {
     if (!w.problems.empty()) continue;
     for (const Row& row : w.rows)
-      if (!row.same_as) columns.add(row.input, *row.battery, now, row.hash);
+      if (!row.same_as) columns.add(row.prepared, *row.battery, now);
   }
   const auto inserted = columns.insert(tx);
   std::vector<std::string> missing;
   for (const BatchWork& w : work)
     for (const Row& row : w.rows)
-      if (!row.problem && !row.same_as && !inserted.count(row.input.reading_id))
-        missing.push_back(row.input.reading_id);
+      if (!row.problem && !row.same_as && !inserted.count(row.prepared.input.reading_id))
+        missing.push_back(row.prepared.input.reading_id);
   const auto earlier = existing(tx, missing);
   std::vector<Id> replay_ids;
   for (BatchWork& w : work) {
     for (std::size_t i = 0; i < w.rows.size(); ++i) {
       Row& row = w.rows[i];
       if (row.problem || row.same_as) continue;
-      if (auto in = inserted.find(row.input.reading_id); in != inserted.end()) {
+      if (auto in = inserted.find(row.prepared.input.reading_id); in != inserted.end()) {
         w.inserted.push_back(in->second);
-      } else if (auto e = earlier.find(row.input.reading_id); e != earlier.end()) {
-        if (e->second.second == row.hash) {
+      } else if (auto e = earlier.find(row.prepared.input.reading_id); e != earlier.end()) {
+        if (e->second.second == row.prepared.hash) {
           replay_ids.push_back(e->second.first);
         } else {
-          w.problems.push_back(conflict_problem(i, row.input.reading_id));
+          w.problems.push_back(conflict_problem(i, row.prepared.input.reading_id));
           row.problem = true;
         }
       }
@@ -248,7 +248,7 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
     // A repeat of a conflicting row conflicts too.
     for (std::size_t i = 0; i < w.rows.size(); ++i) {
       if (w.rows[i].same_as && w.rows[*w.rows[i].same_as].problem) {
-        w.problems.push_back(conflict_problem(i, w.rows[i].input.reading_id));
+        w.problems.push_back(conflict_problem(i, w.rows[i].prepared.input.reading_id));
       }
     }
   }
@@ -270,16 +270,16 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
       if (row.same_as) {
         out.readings.push_back(out.readings[*row.same_as]);
         out.replayed.push_back(true);
-      } else if (auto in = inserted.find(row.input.reading_id); in != inserted.end()) {
+      } else if (auto in = inserted.find(row.prepared.input.reading_id); in != inserted.end()) {
         StoredReading stored;
-        static_cast<ReadingInput&>(stored) = std::move(row.input);
+        static_cast<ReadingInput&>(stored) = std::move(row.prepared.input);
         stored.id = in->second;
         stored.battery_id = row.battery->id;
         stored.received_at = now;
         out.readings.push_back(std::move(stored));
         out.replayed.push_back(false);
       } else {
-        out.readings.push_back(replays.at(earlier.at(row.input.reading_id).first));
+        out.readings.push_back(replays.at(earlier.at(row.prepared.input.reading_id).first));
         out.replayed.push_back(true);
       }
     }
@@ -297,15 +297,15 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
 
 }  // namespace
 
-std::vector<AppendOutcome> append_group(Tx& tx, const std::vector<std::vector<ReadingInput>>& batches,
+std::vector<AppendOutcome> append_group(Tx& tx, std::vector<std::vector<PreparedReading>>& batches,
                                         sys_seconds now) {
   std::vector<std::string> serials;
   for (const auto& batch : batches)
-    for (const auto& r : batch) serials.push_back(r.serial);
+    for (const auto& r : batch) serials.push_back(r.input.serial);
   const BatteryRefs batteries = battery_refs(tx, serials);
   std::vector<BatchWork> work;
   work.reserve(batches.size());
-  for (const auto& batch : batches) work.push_back(check_batch(batch, batteries));
+  for (auto& batch : batches) work.push_back(check_batch(batch, batteries));
   std::vector<AppendOutcome> outcomes;
   if (reading_id_in_two_batches(work)) {
     outcomes.reserve(work.size());
@@ -333,8 +333,8 @@ std::size_t load_group(Tx& tx, const std::vector<ReadingInput>& batch, sys_secon
       if (battery == batteries.end())
         fail(StoreErrc::not_found, "no battery with serial '" + r.serial + "'", "serial");
       if (r.reading_id.empty()) r.reading_id = new_reading_id();
-      columns.add(r, battery->second, now, content_hash(r));
       wanted.push_back(r.reading_id);
+      columns.add(prepare_reading(std::move(r), std::nullopt), battery->second, now);
     }
     const auto inserted = columns.insert(tx);
     if (inserted.size() != wanted.size()) {

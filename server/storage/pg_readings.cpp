@@ -33,11 +33,12 @@ std::vector<StoredReading> collect(const pqxx::result& rows) {
 
 StoreResult<AppendOutcome> PgStore::append_readings(const std::vector<ReadingInput>& batch,
                                                     sys_seconds now) {
-  return write([&](pqxx::transaction_base& tx) { return std::move(append_group(tx, {batch}, now).front()); });
+  std::vector<std::vector<PreparedReading>> batches{prepare_readings(batch)};
+  return write([&](pqxx::transaction_base& tx) { return std::move(append_group(tx, batches, now).front()); });
 }
 
 StoreResult<std::vector<AppendOutcome>> PgStore::append_reading_batches(
-    const std::vector<std::vector<ReadingInput>>& batches, sys_seconds now) {
+    std::vector<std::vector<PreparedReading>> batches, sys_seconds now) {
   return write([&](pqxx::transaction_base& tx) { return append_group(tx, batches, now); });
 }
 

@@ -31,8 +31,6 @@ inline constexpr std::string_view kMeasurementColumns =
     "SELECT r.taken_at, r.ocv_v, r.cell_sg, r.electrolyte_temp_c, r.rest_h, r.load_test_a,"
     " r.load_test_end_v, r.after_charge, r.water_added";
 
-using sqlite::content_hash;
-using sqlite::ContentHash;
 using sqlite::decode_cell_sg_into;
 using sqlite::encode_cell_sg;
 using sqlite::encode_cursor;

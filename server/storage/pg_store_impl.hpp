@@ -61,8 +61,7 @@ class PgStore final : public Store {
   StoreResult<AppendOutcome> append_readings(const std::vector<models::wire::ReadingInput>& batch,
                                              std::chrono::sys_seconds now) override;
   StoreResult<std::vector<AppendOutcome>> append_reading_batches(
-      const std::vector<std::vector<models::wire::ReadingInput>>& batches,
-      std::chrono::sys_seconds now) override;
+      std::vector<std::vector<PreparedReading>> batches, std::chrono::sys_seconds now) override;
   StoreResult<std::size_t> load_readings(const std::vector<models::wire::ReadingInput>& batch,
                                          std::chrono::sys_seconds now) override;
   StoreResult<std::vector<StoredReading>> readings_for(
@@ -221,7 +220,7 @@ void prepare_statements(pqxx::connection& c);
 // Storing readings set at a time (pg_append.cpp), inside a write transaction.
 // One outcome per batch, as Store::append_reading_batches promises.
 std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx,
-                                        const std::vector<std::vector<models::wire::ReadingInput>>& batches,
+                                        std::vector<std::vector<PreparedReading>>& batches,
                                         std::chrono::sys_seconds now);
 // Store::load_readings' body: throws PgError (not_found, conflict).
 std::size_t load_group(pqxx::transaction_base& tx,

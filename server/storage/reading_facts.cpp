@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "models/analytics/derive.hpp"
+#include "server/storage/sqlite_rows.hpp"
 
 namespace pbfleet::storage {
 
@@ -51,6 +52,31 @@ ReadingFacts facts_of(const models::BatterySpec& spec, const analytics::ReadingP
   const auto d = analytics::derive(reading, spec, kSettings);
   if (!d.trusted) return {};
   return {d.soc_percent, d.electrolyte_c};
+}
+
+PreparedReading prepare_reading(models::wire::ReadingInput input,
+                                const std::optional<models::BatterySpec>& spec) {
+  PreparedReading out;
+  out.hash = content_hash(input);
+  out.cell_sg_text = sqlite::encode_cell_sg(input.cell_sg);
+  if (spec) {
+    out.spec = *spec;
+    out.facts = facts_of(*spec, point_of(input));
+  }
+  out.input = std::move(input);
+  return out;
+}
+
+std::vector<PreparedReading> prepare_readings(const std::vector<models::wire::ReadingInput>& batch) {
+  std::vector<PreparedReading> out;
+  out.reserve(batch.size());
+  for (const auto& r : batch) out.push_back(prepare_reading(r, std::nullopt));
+  return out;
+}
+
+ReadingFacts facts_for(const PreparedReading& reading, const models::BatterySpec& actual) {
+  if (reading.spec && *reading.spec == actual) return reading.facts;
+  return facts_of(actual, point_of(reading.input));
 }
 
 std::string facts_version() {

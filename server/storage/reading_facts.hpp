@@ -12,8 +12,10 @@
 // columns and summaries out again from the raw readings when it opens.
 #pragma once
 
+#include <array>
 #include <optional>
 #include <string>
+#include <vector>
 
 #include "models/analytics/history.hpp"
 #include "models/analytics/winter.hpp"
@@ -36,6 +38,34 @@ struct ReadingFacts {
   std::optional<double> trusted_temp_c;  // electrolyte temperature used (25 if not measured)
 };
 ReadingFacts facts_of(const models::BatterySpec& spec, const analytics::ReadingPoint& reading);
+
+// Fingerprint of everything a reading says except its reading_id: the first
+// 16 bytes of SHA-256 over a length-prefixed canonical form. The same
+// reading_id with another fingerprint is a conflict, with the same one a
+// replay.
+using ContentHash = std::array<unsigned char, 16>;
+ContentHash content_hash(const models::wire::ReadingInput& reading);
+
+// A reading with the per-reading work of storing it done beforehand, on the
+// caller's thread, so that the one thread that writes does little more
+// than insert: its fingerprint, its cell SGs as stored, and its facts under
+// the battery spec the caller saw. A store uses `facts` only when the
+// battery's spec read inside the write transaction equals `spec` (a spec
+// changed meanwhile gets the facts worked out again).
+struct PreparedReading {
+  models::wire::ReadingInput input;
+  ContentHash hash{};
+  std::string cell_sg_text;                 // encode_cell_sg(input.cell_sg)
+  std::optional<models::BatterySpec> spec;  // none: facts not worked out
+  ReadingFacts facts;
+};
+// `spec`: the battery's spec as the caller knows it, or none to leave the
+// facts to the store.
+PreparedReading prepare_reading(models::wire::ReadingInput input,
+                                const std::optional<models::BatterySpec>& spec);
+std::vector<PreparedReading> prepare_readings(const std::vector<models::wire::ReadingInput>& batch);
+// The facts to store for `reading` on a battery of spec `actual`.
+ReadingFacts facts_for(const PreparedReading& reading, const models::BatterySpec& actual);
 
 // Names the derivation behind the facts: the derive rules' version and the
 // settings they use. Stored with the summaries; a change recomputes them.

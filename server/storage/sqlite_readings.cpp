@@ -61,19 +61,19 @@ struct ReadingStatements {
   // Inserts the row with its derived facts (reading_facts.hpp; the
   // summary triggers read them); false (and nothing written) when its
   // reading_id is stored already, so a new reading costs one index probe.
-  bool insert_row(const ReadingInput& r, const BatteryRef& battery, sys_seconds now,
-                  const ContentHash& hash) {
-    const ReadingFacts facts = facts_of(battery.spec, point_of(r));
+  bool insert_row(const PreparedReading& prepared, const BatteryRef& battery, sys_seconds now) {
+    const ReadingInput& r = prepared.input;
+    const ReadingFacts facts = facts_for(prepared, battery.spec);
     Statement& s = insert;
     s.reset();
     s.bind(1, r.reading_id).bind(2, battery.id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
-    s.bind(5, raw(r.ocv)).bind(6, encode_cell_sg(r.cell_sg));
+    s.bind(5, raw(r.ocv)).bind(6, prepared.cell_sg_text);
     bind_temperature(s, 7, r.electrolyte);
     bind_temperature(s, 9, r.ambient);
     s.bind(11, raw(r.rest)).bind(12, raw(r.load_test_current)).bind(13, raw(r.load_test_end));
     s.bind(14, r.logged_by).bind(15, r.source).bind(16, r.note);
     s.bind(17, r.after_charge ? 1 : 0).bind(18, r.water_added ? 1 : 0);
-    s.bind_blob(19, hash.data(), hash.size());
+    s.bind_blob(19, prepared.hash.data(), prepared.hash.size());
     s.bind(20, facts.trusted_soc_pct).bind(21, facts.trusted_temp_c);
     s.run();
     return db.changes() == 1;
@@ -130,7 +130,7 @@ RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
 // One batch inside an open transaction: every row is checked (so all
 // problems are reported), rows are inserted until the first problem.
 // The caller undoes the inserts when problems come back.
-AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<ReadingInput>& batch,
+AppendOutcome append_batch(Db& db, ReadingStatements& st, std::vector<PreparedReading>& batch,
                            sys_seconds now) {
   AppendOutcome out;
   out.readings.reserve(batch.size());
@@ -138,14 +138,15 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
   std::unordered_map<std::string, SeenInBatch> seen;
   seen.reserve(batch.size());
   for (std::size_t row = 0; row < batch.size(); ++row) {
-    ReadingInput input = batch[row];
+    PreparedReading& prepared = batch[row];
+    ReadingInput& input = prepared.input;
     const BatteryRef* battery = st.battery(input.serial);
     if (!battery) {
       out.problems.push_back(
           {row, StoreErrc::not_found, "serial", "no battery with serial '" + input.serial + "'"});
       continue;
     }
-    const ContentHash hash = content_hash(input);
+    const ContentHash& hash = prepared.hash;
     if (input.reading_id.empty()) input.reading_id = new_reading_id();
     if (auto it = seen.find(input.reading_id); it != seen.end()) {
       if (it->second.hash != hash) {
@@ -159,7 +160,7 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
     // A clean batch so far inserts at once; an existing reading_id makes
     // the insert a no-op and falls through to the replay check. Once the
     // batch has problems it will be undone, so rows are only checked.
-    if (out.problems.empty() && st.insert_row(input, *battery, now, hash)) {
+    if (out.problems.empty() && st.insert_row(prepared, *battery, now)) {
       StoredReading stored;
       static_cast<ReadingInput&>(stored) = std::move(input);
       stored.id = db.last_insert_id();
@@ -192,7 +193,7 @@ AppendOutcome append_batch(Db& db, ReadingStatements& st, const std::vector<Read
 }
 
 // Batch append guarded by a savepoint: a refused batch leaves no trace.
-AppendOutcome append_isolated(Db& db, ReadingStatements& st, const std::vector<ReadingInput>& batch,
+AppendOutcome append_isolated(Db& db, ReadingStatements& st, std::vector<PreparedReading>& batch,
                               sys_seconds now) {
   Savepoint sp(db);
   AppendOutcome out = append_batch(db, st, batch, now);
@@ -217,19 +218,20 @@ std::vector<StoredReading> collect(Statement& s) {
 
 StoreResult<AppendOutcome> SqliteStore::append_readings(const std::vector<ReadingInput>& batch,
                                                         sys_seconds now) {
+  std::vector<PreparedReading> prepared = prepare_readings(batch);
   return write([&](Db& db) {
     ReadingStatements st(db);
-    return append_isolated(db, st, batch, now);
+    return append_isolated(db, st, prepared, now);
   });
 }
 
 StoreResult<std::vector<AppendOutcome>> SqliteStore::append_reading_batches(
-    const std::vector<std::vector<ReadingInput>>& batches, sys_seconds now) {
+    std::vector<std::vector<PreparedReading>> batches, sys_seconds now) {
   return write([&](Db& db) {
     ReadingStatements st(db);
     std::vector<AppendOutcome> outcomes;
     outcomes.reserve(batches.size());
-    for (const auto& batch : batches) outcomes.push_back(append_isolated(db, st, batch, now));
+    for (auto& batch : batches) outcomes.push_back(append_isolated(db, st, batch, now));
     return outcomes;
   });
 }
@@ -243,10 +245,10 @@ StoreResult<std::size_t> SqliteStore::load_readings(const std::vector<ReadingInp
       if (!battery) {
         fail(StoreErrc::not_found, "no battery with serial '" + given.serial + "'", "serial");
       }
-      ReadingInput r = given;
-      if (r.reading_id.empty()) r.reading_id = new_reading_id();
-      if (!st.insert_row(r, *battery, now, content_hash(r)))
-        fail(StoreErrc::conflict, "reading_id '" + r.reading_id + "' is already stored",
+      PreparedReading r = prepare_reading(given, std::nullopt);
+      if (r.input.reading_id.empty()) r.input.reading_id = new_reading_id();
+      if (!st.insert_row(r, *battery, now))
+        fail(StoreErrc::conflict, "reading_id '" + r.input.reading_id + "' is already stored",
              "reading_id");
     }
     return batch.size();

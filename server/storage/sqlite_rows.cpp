@@ -173,7 +173,14 @@ void decode_cell_sg_into(std::string_view text, std::vector<models::SpecificGrav
   }
 }
 
+}  // namespace pbfleet::storage::sqlite
+
+namespace pbfleet::storage {
+
 ContentHash content_hash(const models::wire::ReadingInput& r) {
+  using sqlite::Canonical;
+  using sqlite::encode_cell_sg;
+  using sqlite::fail;
   Canonical c;
   c.add(r.serial);
   c.add(std::to_string(r.taken_at.time_since_epoch().count()));
@@ -198,6 +205,10 @@ ContentHash content_hash(const models::wire::ReadingInput& r) {
   std::memcpy(out.data(), digest, out.size());
   return out;
 }
+
+}  // namespace pbfleet::storage
+
+namespace pbfleet::storage::sqlite {
 
 std::string encode_cursor(Id last_id) {
   static constexpr char kHex[] = "0123456789abcdef";

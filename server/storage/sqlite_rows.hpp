@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "server/storage/domain.hpp"
+#include "server/storage/reading_facts.hpp"
 #include "server/storage/sqlite_db.hpp"
 
 namespace pbfleet::storage::sqlite {
@@ -52,10 +53,7 @@ std::vector<models::SpecificGravity> decode_cell_sg(std::string_view text);
 // Same, into `cells` (cleared first; its capacity is reused).
 void decode_cell_sg_into(std::string_view text, std::vector<models::SpecificGravity>& cells);
 
-// Fingerprint of everything a reading says except its reading_id: the first
-// 16 bytes of SHA-256 over a length-prefixed canonical form.
-using ContentHash = std::array<unsigned char, 16>;
-ContentHash content_hash(const models::wire::ReadingInput& reading);
+using storage::ContentHash;  // reading_facts.hpp
 
 // Opaque page cursors: the last id of the previous page.
 std::string encode_cursor(Id last_id);

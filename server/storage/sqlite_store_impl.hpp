@@ -51,8 +51,7 @@ class SqliteStore final : public Store {
   StoreResult<AppendOutcome> append_readings(const std::vector<models::wire::ReadingInput>& batch,
                                              std::chrono::sys_seconds now) override;
   StoreResult<std::vector<AppendOutcome>> append_reading_batches(
-      const std::vector<std::vector<models::wire::ReadingInput>>& batches,
-      std::chrono::sys_seconds now) override;
+      std::vector<std::vector<PreparedReading>> batches, std::chrono::sys_seconds now) override;
   StoreResult<std::size_t> load_readings(const std::vector<models::wire::ReadingInput>& batch,
                                          std::chrono::sys_seconds now) override;
   StoreResult<std::vector<StoredReading>> readings_for(

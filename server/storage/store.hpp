@@ -207,10 +207,10 @@ class Store {
   // Group commit: several independent batches (e.g. from concurrent
   // requests) in ONE transaction; each batch is accepted or refused on its
   // own, exactly as append_readings would. On an error (disk full,
-  // unavailable) nothing of any batch is stored.
+  // unavailable) nothing of any batch is stored. The readings come
+  // prepared (prepare_reading, on the caller's thread), and are moved from.
   virtual StoreResult<std::vector<AppendOutcome>> append_reading_batches(
-      const std::vector<std::vector<models::wire::ReadingInput>>& batches,
-      std::chrono::sys_seconds now) = 0;
+      std::vector<std::vector<PreparedReading>> batches, std::chrono::sys_seconds now) = 0;
   // Bulk load for benchmarks and the demo generator: one transaction, one
   // prepared insert, no replay lookups. Any duplicate id or unknown serial
   // refuses the whole batch (conflict / not_found). Returns rows stored.

@@ -28,7 +28,7 @@ ReadingWriter::Batch one_reading(const std::string& id) {
   r.rest = models::Hours{6.0};
   r.logged_by = "writer test";
   r.source = "round";
-  return {r};
+  return storage::prepare_readings({r});
 }
 
 std::size_t stored_count(storage::Store& store) {

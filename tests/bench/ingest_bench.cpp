@@ -6,7 +6,9 @@
 //           one transaction per 500 rows, the server's schema and pragmas);
 //           once with the default answer (every reading echoed with its
 //           derived values) and once with "Prefer: return=minimal" (counts,
-//           reading ids and flags, as the CLI's import asks for).
+//           reading ids and flags, as the CLI's import asks for);
+//   store   the same rows through Store::append_reading_batches in process
+//           (no HTTP, no JSON) vs the raw insert: the storage layer's share.
 //
 //   bench_ingest --pbfleetd PATH --work DIR [--single N] [--batches M] [--seconds S]
 //                [--connections C]
@@ -138,12 +140,34 @@ int main(int argc, char** argv) {
   const std::vector<ReadingInput> same_rows(first_batch,
                                             first_batch + static_cast<long>(o.batches * kBatch));
   const double raw_rate = raw_insert_rate(raw, same_rows, kBatch);
+  // The same rows through the store alone (no HTTP, no JSON): what the
+  // writer thread does per batch, one batch per transaction.
+  const fs::path direct = fresh_db(o.work, "store.db", fleet, nullptr);
+  double store_rate = 0;
+  {
+    auto store = open_store(direct);
+    const auto start = SteadyClock::now();
+    for (std::size_t i = 0; i < same_rows.size(); i += kBatch) {
+      const auto end = same_rows.begin() + static_cast<long>(std::min(same_rows.size(), i + kBatch));
+      std::vector<std::vector<storage::PreparedReading>> group;
+      group.push_back(storage::prepare_readings({same_rows.begin() + static_cast<long>(i), end}));
+      auto stored = store->append_reading_batches(std::move(group), kReportNow);
+      if (!stored || !stored->front().accepted()) {
+        std::fprintf(stderr, "store append failed\n");
+        return 1;
+      }
+    }
+    store_rate = static_cast<double>(same_rows.size()) / seconds_since(start);
+  }
 
   print_figure({"ingest.single", single, "readings/s", "GET /healthz", healthz, "req/s",
                           single / healthz, at_least(0.5, ">= 0.50"), {}, "2 threads x " + std::to_string(o.connections) + " keep-alive conns"});
   print_figure({"ingest.batch500", batched, "readings/s", "raw SQLite insert", raw_rate,
                       "rows/s", batched / raw_rate, at_least(0.85, ">= 0.85"), {},
                       "500 per request and per raw transaction"});
+  print_figure({"ingest.store.batch500", store_rate, "readings/s", "raw SQLite insert", raw_rate,
+                "rows/s", store_rate / raw_rate, {}, {},
+                "Store::append_reading_batches in process, 500 per transaction"});
   print_figure({"ingest.batch500.minimal", minimal, "readings/s", "raw SQLite insert", raw_rate,
                 "rows/s", minimal / raw_rate, at_least(0.9, ">= 0.90"), {},
                 "as above, Prefer: return=minimal"});

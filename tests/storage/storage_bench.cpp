@@ -110,9 +110,9 @@ void single_appends(Store& store, int count) {
 void group_commits(Store& store, int transactions, int per_transaction) {
   const auto start = Clock::now();
   for (int t = 0; t < transactions; ++t) {
-    std::vector<std::vector<models::wire::ReadingInput>> requests;
+    std::vector<std::vector<PreparedReading>> requests;
     for (int i = 0; i < per_transaction; ++i) {
-      requests.push_back({weekly(i % 50, 200000 + t * per_transaction + i, "group-")});
+      requests.push_back(prepare_readings({weekly(i % 50, 200000 + t * per_transaction + i, "group-")}));
     }
     must(store.append_reading_batches(requests, std::chrono::sys_seconds{kEpoch}), "group");
   }

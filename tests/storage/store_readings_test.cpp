@@ -182,7 +182,7 @@ STORE_TEST_CASE("group commit accepts and refuses each batch on its own in one t
   auto bad = week_round("g2-", 2);
   bad[1].serial = "GHOST";
   const auto outcomes = f.store->append_reading_batches(
-      {week_round("g1-", 3), bad, {reading("seen", "NY-0001", 1)}, week_round("g4-", 2, 10)},
+      testing::prepared({week_round("g1-", 3), bad, {reading("seen", "NY-0001", 1)}, week_round("g4-", 2, 10)}),
       at(20));
   REQUIRE(outcomes.ok());
   REQUIRE(outcomes->size() == 4);
@@ -219,9 +219,9 @@ STORE_TEST_CASE("a reading id new in two batches of one group is stored by the f
   auto changed = reading("twice", "NY-0001", 1);
   changed.note = "other";
   const auto outcomes = f.store->append_reading_batches(
-      {{reading("twice", "NY-0001", 1), reading("a", "NY-0001", 2)},
-       {reading("twice", "NY-0001", 1)},
-       {changed, reading("b", "NY-0001", 3)}},
+      testing::prepared({{reading("twice", "NY-0001", 1), reading("a", "NY-0001", 2)},
+                {reading("twice", "NY-0001", 1)},
+                {changed, reading("b", "NY-0001", 3)}}),
       at(5)).value();
   REQUIRE(outcomes.size() == 3);
   REQUIRE(outcomes[0].accepted());

@@ -122,6 +122,33 @@ Tally check_all(Store& store) {
   return tally;
 }
 
+// Prepared as the API prepares a batch: under each battery's own spec.
+std::vector<PreparedReading> prepared_under_own_spec(Store& store, const std::vector<ReadingInput>& batch) {
+  std::vector<PreparedReading> out;
+  for (const auto& r : batch) out.push_back(prepare_reading(r, spec_of(store.get_battery(r.serial).value())));
+  return out;
+}
+
+// A spec none of the batteries has, as if a battery's spec had changed
+// between the request's check and the write.
+models::BatterySpec stale_spec() {
+  models::BatterySpec spec = models::default_spec(models::Chemistry::flooded, 6);
+  spec.full_charge_sg = models::SpecificGravity{1.310};
+  return spec;
+}
+
+// Prepared under `spec`, with facts no model would give: a store that kept
+// them would show them in the summaries.
+std::vector<PreparedReading> prepared_under(const models::BatterySpec& spec,
+                                            const std::vector<ReadingInput>& batch) {
+  std::vector<PreparedReading> out;
+  for (const auto& r : batch) {
+    out.push_back(prepare_reading(r, spec));
+    out.back().facts = ReadingFacts{999.0, 99.0};
+  }
+  return out;
+}
+
 template <class Backend>
 void add_batteries(Fleet<Backend>& f) {
   for (std::size_t i = 1; i < kHabits.size(); ++i) {
@@ -150,7 +177,14 @@ STORE_TEST_CASE("summaries equal the look-back worked out from the raw readings,
     // A group with a refused batch (unknown serial): nothing of it may count.
     auto refused = gen.batch(5);
     refused.back().serial = "NO-SUCH";
-    const auto group = f.store->append_reading_batches({gen.batch(gen.size(30)), refused, gen.batch(3)}, at(70));
+    // Prepared as the API prepares them: the first batch under each
+    // battery's own spec (its facts are stored as given), the last under a
+    // spec no battery has (the store must work them out again).
+    std::vector<std::vector<PreparedReading>> group_batches;
+    group_batches.push_back(prepared_under_own_spec(*f.store, gen.batch(gen.size(30))));
+    group_batches.push_back(prepare_readings(refused));
+    group_batches.push_back(prepared_under(stale_spec(), gen.batch(3)));
+    const auto group = f.store->append_reading_batches(std::move(group_batches), at(70));
     REQUIRE(group.ok());
     CHECK_FALSE(group.value()[1].accepted());
     // A replay of a stored batch adds nothing.
@@ -205,6 +239,25 @@ TEST_CASE("a database summarised under other derive rules is summarised again wh
   CHECK(t.with_trusted >= 3);
   sqlite::Db db(f.dir.file("fleet.db"), sqlite::Db::Mode::read_only);
   CHECK(db.query_int("SELECT count(*) FROM readings WHERE trusted_soc_pct IS NOT NULL") > 0);
+}
+
+STORE_TEST_CASE("facts prepared under the battery's own spec are stored as given, without deriving again") {
+  Fleet<Backend> f;
+  // An unsettled OCV reading: the models do not trust it, so facts the
+  // store worked out itself would be empty.
+  ReadingInput r = testing::reading("p-1", "NY-0001", 3);
+  r.cell_sg.clear();
+  r.rest = models::Hours{0.5};
+  REQUIRE_FALSE(facts_of(spec_of(f.battery), point_of(r)).trusted_soc_pct.has_value());
+  std::vector<std::vector<PreparedReading>> group{{prepare_reading(r, spec_of(f.battery))}};
+  group[0][0].facts = ReadingFacts{42.5, 7.0};
+  REQUIRE(f.store->append_reading_batches(std::move(group), at(4)).ok());
+  std::optional<BatterySummary> kept;
+  REQUIRE(f.store->visit_summaries({}, [&](const Battery&, const BatterySummary& s) { kept = s; }).ok());
+  REQUIRE(kept);
+  REQUIRE(kept->trusted.has_value());
+  CHECK(kept->trusted->soc_percent == 42.5);
+  CHECK(kept->trusted->electrolyte_c == 7.0);
 }
 
 STORE_TEST_CASE("the data version moves on with each stored reading and fleet change, not with reads") {

@@ -167,6 +167,22 @@ std::string minimal_body(const storage::AppendOutcome& outcome, const BatteriesB
   });
 }
 
+// Fingerprints and facts worked out here, on the request's worker thread,
+// under the spec of each battery as the intake check found it.
+ReadingWriter::Batch prepare(std::vector<wire::ReadingInput> readings,
+                             const BatteriesBySerial& batteries) {
+  std::map<std::string_view, models::BatterySpec> specs;
+  for (const auto& [serial, battery] : batteries) specs.emplace(serial, spec_of(battery));
+  ReadingWriter::Batch batch;
+  batch.reserve(readings.size());
+  for (auto& r : readings) {
+    const auto spec = specs.find(r.serial);
+    batch.push_back(storage::prepare_reading(
+        std::move(r), spec == specs.end() ? std::nullopt : std::optional(spec->second)));
+  }
+  return batch;
+}
+
 }  // namespace
 
 void post_readings(const Call& call, http::Reply reply) {
@@ -184,6 +200,7 @@ void post_readings(const Call& call, http::Reply reply) {
                          std::to_string(checked.problems.size()) +
                              " field(s) invalid; nothing was stored",
                          checked.problems));
+  ReadingWriter::Batch batch = prepare(std::move(readings), checked.batteries);
   Metrics& metrics = call.ctx.metrics;
   const bool minimal = prefers(call.request.header("prefer"), "return=minimal");
   auto done = [reply, name = name, batteries = std::move(checked.batteries), &metrics,
@@ -198,7 +215,7 @@ void post_readings(const Call& call, http::Reply reply) {
     response.headers.emplace_back("Preference-Applied", "return=minimal");
     reply(std::move(response));
   };
-  if (!call.ctx.writer.submit(std::move(readings), std::move(done)))
+  if (!call.ctx.writer.submit(std::move(batch), std::move(done)))
     reply(problem(ProblemKind::storage_unavailable, "too many writes queued; retry shortly"));
 }
 

@@ -66,7 +66,7 @@ void ReadingWriter::commit(std::vector<Pending>& group) {
   storage::StoreResult<std::vector<storage::AppendOutcome>> result =
       storage::StoreError{storage::StoreErrc::internal, "reading writer failed", ""};
   try {
-    result = store_.append_reading_batches(batches, clock_.now());
+    result = store_.append_reading_batches(std::move(batches), clock_.now());
   } catch (const std::exception& e) {
     result = storage::StoreError{storage::StoreErrc::internal, e.what(), ""};
   }

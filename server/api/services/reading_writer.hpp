@@ -33,7 +33,9 @@ struct WriterOptions {
 
 class ReadingWriter {
  public:
-  using Batch = std::vector<models::wire::ReadingInput>;
+  // Prepared on the submitting thread (storage::prepare_reading): the
+  // hashing and deriving happen there, in parallel, not on the writer.
+  using Batch = std::vector<storage::PreparedReading>;
   // Called once, on the acknowledging thread, after the transaction ended;
   // callbacks run one at a time, in commit order.
   using Done = std::function<void(storage::StoreResult<storage::AppendOutcome>)>;

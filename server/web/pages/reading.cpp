@@ -255,7 +255,8 @@ http::Response reading_submit(const PageCall& call) {
   }
   std::promise<storage::StoreResult<storage::AppendOutcome>> stored;
   auto future = stored.get_future();
-  if (!call.ctx.writer.submit(batch, [&stored](auto result) { stored.set_value(std::move(result)); }))
+  api::ReadingWriter::Batch prepared{storage::prepare_reading(batch.front(), storage::spec_of(*b))};
+  if (!call.ctx.writer.submit(std::move(prepared), [&stored](auto result) { stored.set_value(std::move(result)); }))
     return message_page(call, 503, "Log a reading", "The server is busy; nothing was stored. Try again.");
   auto result = future.get();
   if (!result) return message_page(call, 503, "Log a reading", "Not stored: " + result.error().detail);
