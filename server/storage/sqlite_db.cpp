@@ -143,6 +143,15 @@ Statement& Statement::bind_blob(int index, const void* data, std::size_t size) {
   db_->check(sqlite3_bind_blob64(stmt_, index, data, size, SQLITE_TRANSIENT), "bind");
   return *this;
 }
+Statement& Statement::bind_kept(int index, std::string_view text) {
+  db_->check(sqlite3_bind_text64(stmt_, index, text.data(), text.size(), SQLITE_STATIC, SQLITE_UTF8),
+             "bind");
+  return *this;
+}
+Statement& Statement::bind_blob_kept(int index, const void* data, std::size_t size) {
+  db_->check(sqlite3_bind_blob64(stmt_, index, data, size, SQLITE_STATIC), "bind");
+  return *this;
+}
 Statement& Statement::bind_null(int index) {
   db_->check(sqlite3_bind_null(stmt_, index), "bind");
   return *this;

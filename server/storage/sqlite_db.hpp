@@ -93,6 +93,10 @@ class Statement {
   Statement& bind(int index, std::string_view text);
   Statement& bind(int index, const char* text) { return bind(index, std::string_view(text)); }
   Statement& bind_blob(int index, const void* data, std::size_t size);
+  // Without SQLite's own copy: the caller keeps `text` / `data` alive and
+  // unchanged until the statement is next reset (the row writer's inputs).
+  Statement& bind_kept(int index, std::string_view text);
+  Statement& bind_blob_kept(int index, const void* data, std::size_t size);
   Statement& bind_null(int index);
   template <class T>
   Statement& bind(int index, const std::optional<T>& value) {

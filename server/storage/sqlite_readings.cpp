@@ -66,14 +66,15 @@ struct ReadingStatements {
     const ReadingFacts facts = facts_for(prepared, battery.spec);
     Statement& s = insert;
     s.reset();
-    s.bind(1, r.reading_id).bind(2, battery.id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
-    s.bind(5, raw(r.ocv)).bind(6, prepared.cell_sg_text);
+    // Texts bound in place: `prepared` outlives this row's step.
+    s.bind_kept(1, r.reading_id).bind(2, battery.id).bind(3, to_db(r.taken_at)).bind(4, to_db(now));
+    s.bind(5, raw(r.ocv)).bind_kept(6, prepared.cell_sg_text);
     bind_temperature(s, 7, r.electrolyte);
     bind_temperature(s, 9, r.ambient);
     s.bind(11, raw(r.rest)).bind(12, raw(r.load_test_current)).bind(13, raw(r.load_test_end));
-    s.bind(14, r.logged_by).bind(15, r.source).bind(16, r.note);
+    s.bind_kept(14, r.logged_by).bind_kept(15, r.source).bind_kept(16, r.note);
     s.bind(17, r.after_charge ? 1 : 0).bind(18, r.water_added ? 1 : 0);
-    s.bind_blob(19, prepared.hash.data(), prepared.hash.size());
+    s.bind_blob_kept(19, prepared.hash.data(), prepared.hash.size());
     s.bind(20, facts.trusted_soc_pct).bind(21, facts.trusted_temp_c);
     s.run();
     return db.changes() == 1;
