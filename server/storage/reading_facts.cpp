@@ -49,7 +49,10 @@ analytics::ReadingPoint point_of(const ReadingMeasurement& r) {
 
 ReadingFacts facts_of(const models::BatterySpec& spec, const analytics::ReadingPoint& reading) {
   static const analytics::AnalyticsSettings kSettings;
-  const auto d = analytics::derive(reading, spec, kSettings);
+  return facts_from(analytics::derive(reading, spec, kSettings));
+}
+
+ReadingFacts facts_from(const analytics::DerivedReading& d) {
   if (!d.trusted) return {};
   return {d.soc_percent, d.electrolyte_c};
 }
@@ -63,6 +66,17 @@ PreparedReading prepare_reading(models::wire::ReadingInput input,
     out.spec = *spec;
     out.facts = facts_of(*spec, point_of(input));
   }
+  out.input = std::move(input);
+  return out;
+}
+
+PreparedReading prepare_reading(models::wire::ReadingInput input, const models::BatterySpec& spec,
+                                const analytics::DerivedReading& derived) {
+  PreparedReading out;
+  out.hash = content_hash(input);
+  out.cell_sg_text = sqlite::encode_cell_sg(input.cell_sg);
+  out.spec = spec;
+  out.facts = facts_from(derived);
   out.input = std::move(input);
   return out;
 }

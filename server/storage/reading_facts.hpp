@@ -17,6 +17,7 @@
 #include <string>
 #include <vector>
 
+#include "models/analytics/derive.hpp"
 #include "models/analytics/history.hpp"
 #include "models/analytics/winter.hpp"
 #include "models/wire/reading.hpp"
@@ -38,6 +39,8 @@ struct ReadingFacts {
   std::optional<double> trusted_temp_c;  // electrolyte temperature used (25 if not measured)
 };
 ReadingFacts facts_of(const models::BatterySpec& spec, const analytics::ReadingPoint& reading);
+// The same, from the reading's derivation under the default settings.
+ReadingFacts facts_from(const analytics::DerivedReading& derived);
 
 // Fingerprint of everything a reading says except its reading_id: the first
 // 16 bytes of SHA-256 over a length-prefixed canonical form. The same
@@ -63,6 +66,10 @@ struct PreparedReading {
 // facts to the store.
 PreparedReading prepare_reading(models::wire::ReadingInput input,
                                 const std::optional<models::BatterySpec>& spec);
+// The same when the caller has derived the reading under `spec` already
+// (analytics::derive, default settings).
+PreparedReading prepare_reading(models::wire::ReadingInput input, const models::BatterySpec& spec,
+                                const analytics::DerivedReading& derived);
 std::vector<PreparedReading> prepare_readings(const std::vector<models::wire::ReadingInput>& batch);
 // The facts to store for `reading` on a battery of spec `actual`.
 ReadingFacts facts_for(const PreparedReading& reading, const models::BatterySpec& actual);

@@ -131,25 +131,21 @@ std::string outcome_body(const storage::AppendOutcome& outcome, std::size_t byte
 
 using BatteriesBySerial = std::map<std::string, storage::Battery>;
 
-// A stored reading's derived values (default settings); nullopt when its
-// battery is not among those the batch was checked against.
-std::optional<analytics::DerivedReading> derived_of(const storage::StoredReading& r,
-                                                    const BatteriesBySerial& batteries) {
-  static const analytics::AnalyticsSettings settings;
-  const auto b = batteries.find(r.serial);
-  if (b == batteries.end()) return std::nullopt;
-  return analytics::derive(point_of(r), spec_of(b->second), settings);
-}
+// Each reading of the batch derived once, on the request's worker thread,
+// under its battery's spec (default settings): for the answer, and for the
+// facts the store keeps. A replay answers with the stored original, whose
+// content (so derivation) is the same. nullopt for a battery the batch was
+// not checked against (the batch is then refused anyway).
+using Derivations = std::vector<std::optional<analytics::DerivedReading>>;
 
 // The 201/200 body: every reading as stored, with its derived values.
-std::string stored_body(const storage::AppendOutcome& outcome, const BatteriesBySerial& batteries) {
+std::string stored_body(const storage::AppendOutcome& outcome, const Derivations& derived) {
   return outcome_body(outcome, 900, [&](JsonText& out, std::size_t i, bool replayed) {
-    const auto& r = outcome.readings[i];
-    write_reading_members(out, r);
+    write_reading_members(out, outcome.readings[i]);
     out.member("replayed", replayed);
-    if (const auto derived = derived_of(r, batteries)) {
+    if (i < derived.size() && derived[i]) {
       out.key("derived");
-      write_derived(out, *derived);
+      write_derived(out, *derived[i]);
     }
   });
 }
@@ -157,30 +153,42 @@ std::string stored_body(const storage::AppendOutcome& outcome, const BatteriesBy
 // The body asked for with "Prefer: return=minimal" (RFC 7240), for bulk
 // clients that keep what they sent: the counts, each reading's id and its
 // flags (what needs the crew's attention; empty when nothing does).
-std::string minimal_body(const storage::AppendOutcome& outcome, const BatteriesBySerial& batteries) {
+std::string minimal_body(const storage::AppendOutcome& outcome, const Derivations& derived) {
   return outcome_body(outcome, 64, [&](JsonText& out, std::size_t i, bool replayed) {
     const auto& r = outcome.readings[i];
     out.member("reading_id", r.reading_id).member("replayed", replayed).key("flags").begin_array();
-    if (const auto derived = derived_of(r, batteries))
-      for (auto word : derived->flags.words()) out.value(word);
+    if (i < derived.size() && derived[i])
+      for (auto word : derived[i]->flags.words()) out.value(word);
     out.end_array();
   });
 }
 
-// Fingerprints and facts worked out here, on the request's worker thread,
-// under the spec of each battery as the intake check found it.
-ReadingWriter::Batch prepare(std::vector<wire::ReadingInput> readings,
-                             const BatteriesBySerial& batteries) {
+// Derivations, fingerprints and facts worked out here, on the request's
+// worker thread, under the spec of each battery as the intake check found
+// it: the writer thread only stores.
+struct Prepared {
+  ReadingWriter::Batch batch;
+  Derivations derived;
+};
+
+Prepared prepare(std::vector<wire::ReadingInput> readings, const BatteriesBySerial& batteries) {
+  static const analytics::AnalyticsSettings settings;
   std::map<std::string_view, models::BatterySpec> specs;
   for (const auto& [serial, battery] : batteries) specs.emplace(serial, spec_of(battery));
-  ReadingWriter::Batch batch;
-  batch.reserve(readings.size());
+  Prepared out;
+  out.batch.reserve(readings.size());
+  out.derived.reserve(readings.size());
   for (auto& r : readings) {
     const auto spec = specs.find(r.serial);
-    batch.push_back(storage::prepare_reading(
-        std::move(r), spec == specs.end() ? std::nullopt : std::optional(spec->second)));
+    if (spec == specs.end()) {
+      out.derived.emplace_back();
+      out.batch.push_back(storage::prepare_reading(std::move(r), std::nullopt));
+      continue;
+    }
+    out.derived.push_back(analytics::derive(point_of(r), spec->second, settings));
+    out.batch.push_back(storage::prepare_reading(std::move(r), spec->second, *out.derived.back()));
   }
-  return batch;
+  return out;
 }
 
 }  // namespace
@@ -200,22 +208,22 @@ void post_readings(const Call& call, http::Reply reply) {
                          std::to_string(checked.problems.size()) +
                              " field(s) invalid; nothing was stored",
                          checked.problems));
-  ReadingWriter::Batch batch = prepare(std::move(readings), checked.batteries);
+  Prepared prepared = prepare(std::move(readings), checked.batteries);
   Metrics& metrics = call.ctx.metrics;
   const bool minimal = prefers(call.request.header("prefer"), "return=minimal");
-  auto done = [reply, name = name, batteries = std::move(checked.batteries), &metrics,
+  auto done = [reply, name = name, derived = std::move(prepared.derived), &metrics,
                minimal](storage::StoreResult<storage::AppendOutcome> result) {
     if (!result) return reply(store_problem(result.error()));
     const auto& outcome = result.value();
     if (!outcome.accepted()) return reply(refused_rows(outcome, name));
     metrics.add_readings_stored(outcome.stored);
     const int status = outcome.stored > 0 ? 201 : 200;
-    if (!minimal) return reply(json_text_response(status, stored_body(outcome, batteries)));
-    auto response = json_text_response(status, minimal_body(outcome, batteries));
+    if (!minimal) return reply(json_text_response(status, stored_body(outcome, derived)));
+    auto response = json_text_response(status, minimal_body(outcome, derived));
     response.headers.emplace_back("Preference-Applied", "return=minimal");
     reply(std::move(response));
   };
-  if (!call.ctx.writer.submit(std::move(batch), std::move(done)))
+  if (!call.ctx.writer.submit(std::move(prepared.batch), std::move(done)))
     reply(problem(ProblemKind::storage_unavailable, "too many writes queued; retry shortly"));
 }
 
