@@ -165,9 +165,16 @@ int main(int argc, char** argv) {
   print_figure({"ingest.batch500", batched, "readings/s", "raw SQLite insert", raw_rate,
                       "rows/s", batched / raw_rate, at_least(0.85, ">= 0.85"), {},
                       "500 per request and per raw transaction"});
-  print_figure({"ingest.store.batch500", store_rate, "readings/s", "raw SQLite insert", raw_rate,
-                "rows/s", store_rate / raw_rate, {}, {},
-                "Store::append_reading_batches in process, 500 per transaction"});
+  Figure store_figure;
+  store_figure.name = "ingest.store.batch500";
+  store_figure.value = store_rate;
+  store_figure.unit = "readings/s";
+  store_figure.limit_name = "raw SQLite insert";
+  store_figure.limit = raw_rate;
+  store_figure.limit_unit = "rows/s";
+  store_figure.ratio = store_rate / raw_rate;
+  store_figure.note = "the store alone in process, preparing too, 500 per transaction";
+  print_figure(store_figure);
   print_figure({"ingest.batch500.minimal", minimal, "readings/s", "raw SQLite insert", raw_rate,
                 "rows/s", minimal / raw_rate, at_least(0.9, ">= 0.90"), {},
                 "as above, Prefer: return=minimal"});
