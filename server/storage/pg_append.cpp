@@ -39,6 +39,7 @@ using std::chrono::sys_seconds;
 using Tx = pqxx::transaction_base;
 
 constexpr std::size_t kLoadChunk = 5000;  // rows per INSERT in the bulk load
+constexpr std::size_t kMaxCachedRefs = 100'000;  // BatteryRefCache entries at most
 
 std::optional<double> temperature(const std::optional<models::wire::EnteredTemperature>& t) {
   return t ? std::optional<double>(t->value.value) : std::nullopt;
@@ -48,14 +49,6 @@ std::optional<std::string> unit(const std::optional<models::wire::EnteredTempera
   if (!t) return std::nullopt;
   return std::string(t->unit == models::wire::TempUnit::f ? "F" : "C");
 }
-
-// A battery a group names: its row id and the spec its readings are
-// derived with.
-struct BatteryRef {
-  Id id = 0;
-  models::BatterySpec spec;
-};
-using BatteryRefs = std::unordered_map<std::string, BatteryRef>;
 
 // The batteries of `serials` (unknown serials are absent), one query: read
 // in the write transaction, so a spec changed by another instance is seen.
@@ -298,11 +291,21 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
 }  // namespace
 
 std::vector<AppendOutcome> append_group(Tx& tx, std::vector<std::vector<PreparedReading>>& batches,
-                                        sys_seconds now) {
-  std::vector<std::string> serials;
+                                        sys_seconds now, BatteryRefCache& cache,
+                                        std::int64_t fleet_changes) {
+  if (fleet_changes < 0 || fleet_changes != cache.fleet_changes) {
+    cache.refs.clear();
+    cache.fleet_changes = fleet_changes;
+  }
+  std::vector<std::string> unknown;
   for (const auto& batch : batches)
-    for (const auto& r : batch) serials.push_back(r.input.serial);
-  const BatteryRefs batteries = battery_refs(tx, serials);
+    for (const auto& r : batch)
+      if (!cache.refs.contains(r.input.serial)) unknown.push_back(r.input.serial);
+  if (!unknown.empty()) {
+    if (cache.refs.size() > kMaxCachedRefs) cache.refs.clear();
+    cache.refs.merge(battery_refs(tx, unknown));
+  }
+  const BatteryRefs& batteries = cache.refs;
   std::vector<BatchWork> work;
   work.reserve(batches.size());
   for (auto& batch : batches) work.push_back(check_batch(batch, batteries));

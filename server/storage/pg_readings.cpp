@@ -34,12 +34,16 @@ std::vector<StoredReading> collect(const pqxx::result& rows) {
 StoreResult<AppendOutcome> PgStore::append_readings(const std::vector<ReadingInput>& batch,
                                                     sys_seconds now) {
   std::vector<std::vector<PreparedReading>> batches{prepare_readings(batch)};
-  return write([&](pqxx::transaction_base& tx) { return std::move(append_group(tx, batches, now).front()); });
+  return write([&](pqxx::transaction_base& tx) {
+    return std::move(append_group(tx, batches, now, battery_refs_, write_fleet_changes_).front());
+  });
 }
 
 StoreResult<std::vector<AppendOutcome>> PgStore::append_reading_batches(
     std::vector<std::vector<PreparedReading>> batches, sys_seconds now) {
-  return write([&](pqxx::transaction_base& tx) { return append_group(tx, batches, now); });
+  return write([&](pqxx::transaction_base& tx) {
+    return append_group(tx, batches, now, battery_refs_, write_fleet_changes_);
+  });
 }
 
 StoreResult<std::size_t> PgStore::load_readings(const std::vector<ReadingInput>& batch,

@@ -13,8 +13,14 @@ namespace pg {
 
 const std::string& begin_write_sql() {
   static const std::string sql = "BEGIN ISOLATION LEVEL READ COMMITTED; SELECT pg_advisory_xact_lock(" +
-                                 std::to_string(kWriteLockKey) + ")";
+                                 std::to_string(kWriteLockKey) +
+                                 "); SELECT value FROM counters WHERE name = 'fleet_changes'";
   return sql;
+}
+
+std::int64_t fleet_changes_of(const pqxx::result& begun) {
+  if (begun.empty() || begun.columns() != 1 || begun[0][0].is_null()) return -1;
+  return begun[0][0].as<std::int64_t>();
 }
 
 void prepare_statements(pqxx::connection& c) {

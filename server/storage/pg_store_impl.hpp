@@ -26,9 +26,30 @@ namespace pbfleet::storage::pg {
 // Advisory lock keys (one 64-bit space per database).
 inline constexpr std::int64_t kWriteLockKey = 0x7062666c74'01;    // every write transaction
 inline constexpr std::int64_t kMigrateLockKey = 0x7062666c74'02;  // schema migration
-// The start of every write transaction: BEGIN and the write lock, one
-// round trip (pg_store.cpp).
+// The start of every write transaction: BEGIN, the write lock and the
+// fleet change count (counters, schema 0004; no row before it), one round
+// trip (pg_store.cpp).
 const std::string& begin_write_sql();
+// The fleet change count a begin_write_sql() answered; -1 when none.
+std::int64_t fleet_changes_of(const pqxx::result& begun);
+
+// A battery a group of readings names: its row id and the spec its
+// readings are derived with.
+struct BatteryRef {
+  Id id = 0;
+  models::BatterySpec spec;
+};
+using BatteryRefs = std::unordered_map<std::string, BatteryRef>;
+
+// The batteries write transactions have read, valid while the database's
+// fleet change count (moved on by any instance's depot, vehicle or battery
+// write, all of them under the write lock) stays what it was when they
+// were read. Lets a group of readings for known batteries skip the query
+// for their ids and specs: one round trip fewer per commit.
+struct BatteryRefCache {
+  std::int64_t fleet_changes = -1;  // -1: nothing cached
+  BatteryRefs refs;
+};
 
 class PgStore final : public Store {
  public:
@@ -135,7 +156,7 @@ class PgStore final : public Store {
       std::optional<Value> value;
       try {
         pqxx::nontransaction tx(c);
-        tx.exec(begin_write_sql());
+        write_fleet_changes_ = fleet_changes_of(tx.exec(begin_write_sql()));
         value.emplace(body(static_cast<pqxx::transaction_base&>(tx)));
         tx.exec("COMMIT");
       } catch (...) {
@@ -191,6 +212,8 @@ class PgStore final : public Store {
   PgOptions options_;
   std::mutex write_mutex_;
   Connection writer_;  // GUARDED_BY(write_mutex_)
+  std::int64_t write_fleet_changes_ = -1;  // GUARDED_BY(write_mutex_): read as the write began
+  BatteryRefCache battery_refs_;           // GUARDED_BY(write_mutex_)
 
   // Batteries by serial as last read, for at most kBatteryCacheTtl and only
   // while this process made no fleet write since (fleet_version_). Every
@@ -221,7 +244,8 @@ void prepare_statements(pqxx::connection& c);
 // One outcome per batch, as Store::append_reading_batches promises.
 std::vector<AppendOutcome> append_group(pqxx::transaction_base& tx,
                                         std::vector<std::vector<PreparedReading>>& batches,
-                                        std::chrono::sys_seconds now);
+                                        std::chrono::sys_seconds now, BatteryRefCache& cache,
+                                        std::int64_t fleet_changes);
 // Store::load_readings' body: throws PgError (not_found, conflict).
 std::size_t load_group(pqxx::transaction_base& tx,
                        const std::vector<models::wire::ReadingInput>& batch, std::chrono::sys_seconds now);

@@ -44,6 +44,32 @@ struct TwoInstances {
 #define PG_TEST_CASE(name) \
   TEST_CASE_TEMPLATE(name, Backend, pbfleet::storage::testing::PostgresBackend)
 
+PG_TEST_CASE("a spec changed through one instance is the spec the other stores reading facts under") {
+  TwoInstances two;
+  // A stores a reading: it now knows NY-0001's id and spec.
+  const Battery before = two.a->get_battery("NY-0001").value();
+  std::vector<std::vector<PreparedReading>> first{{prepare_reading(reading("s-1", "NY-0001", 1), spec_of(before))}};
+  REQUIRE(two.a->append_reading_batches(std::move(first), at(2))->front().accepted());
+  // B changes the spec.
+  Battery changed = before;
+  changed.full_charge_sg = models::SpecificGravity{1.300};
+  REQUIRE(two.b->update_battery(changed).ok());
+  // A reading prepared under the old spec, as a request checked just before
+  // the change would be, with facts no model gives: A must work them out
+  // under the new spec.
+  const auto r = reading("s-2", "NY-0001", 3);
+  std::vector<std::vector<PreparedReading>> second{{prepare_reading(r, spec_of(before))}};
+  second[0][0].facts = ReadingFacts{999.0, 99.0};
+  REQUIRE(two.a->append_reading_batches(std::move(second), at(4))->front().accepted());
+  const ReadingFacts want = facts_of(spec_of(changed), point_of(r));
+  REQUIRE(want.trusted_soc_pct);
+  std::optional<BatterySummary> kept;
+  REQUIRE(two.a->visit_summaries({}, [&](const Battery&, const BatterySummary& s) { kept = s; }).ok());
+  REQUIRE(kept);
+  REQUIRE(kept->trusted);
+  CHECK(kept->trusted->soc_percent == doctest::Approx(*want.trusted_soc_pct).epsilon(1e-9));
+}
+
 PG_TEST_CASE("what one instance writes the other reads at once, history and reports alike") {
   TwoInstances two;
   CHECK(two.b->get_battery("NY-0001")->id == two.battery);
