@@ -16,7 +16,8 @@
 //   scale.*    the winter report at each fleet size of a series, and its
 //              growth from the second-largest to the largest size against
 //              linear growth.
-// Times are the median of R runs after one untimed warm-up run.
+// Times are the median of R runs after one untimed warm-up run (at least 7
+// for the growth figures, which divide two of them).
 //
 //   bench_report --pbfleetd PATH --cache DIR [--batteries B] [--weeks W]
 //                [--scaling 1000,10000,50000] [--scaling-weeks W2]
@@ -60,6 +61,9 @@ struct Options {
 };
 
 constexpr int kHistoryClients = 16;
+// Runs at least, for the figures that are a ratio of two report times (a
+// median of three moved them by 20 % on a shared machine).
+constexpr int kRatioRepeat = 7;
 
 std::vector<int> parse_list(const std::string& text) {
   std::vector<int> out;
@@ -329,7 +333,7 @@ void history_growth(const Options& o) {
     const FleetDb db = fleet_db(o.cache, o.growth_batteries, weeks);
     open_store(db.file);  // summarises a database from an older binary once, untimed
     auto store = open_store(db.file);
-    times.push_back(winter_in_process(*store, o.repeat));
+    times.push_back(winter_in_process(*store, std::max(o.repeat, kRatioRepeat)));
   }
   const auto n = o.growth_weeks.size();
   Figure f{"report.winter.history-growth." + std::to_string(o.growth_weeks[0]) + "-" +
@@ -347,7 +351,7 @@ void scaling(const Options& o) {
     BareReader reader(db.file);
     const double bare = median_scan(o.repeat, [&] { return reader.last_readings(api::kWinterLookback); });
     auto store = open_store(db.file);
-    times.push_back(winter_in_process(*store, o.repeat));
+    times.push_back(winter_in_process(*store, std::max(o.repeat, kRatioRepeat)));
     auto f = timed("scale.winter." + size_name(batteries), times.back(), bare);
     f.note = std::to_string(o.scaling_weeks) + " readings per battery";
     print_figure(f);
