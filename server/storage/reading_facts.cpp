@@ -57,27 +57,34 @@ ReadingFacts facts_from(const analytics::DerivedReading& d) {
   return {d.soc_percent, d.electrolyte_c};
 }
 
-PreparedReading prepare_reading(models::wire::ReadingInput input,
-                                const std::optional<models::BatterySpec>& spec) {
+namespace {
+
+// The fingerprint and stored cell SGs, facts left empty.
+PreparedReading without_facts(models::wire::ReadingInput input) {
   PreparedReading out;
   out.hash = content_hash(input);
   out.cell_sg_text = sqlite::encode_cell_sg(input.cell_sg);
+  out.input = std::move(input);
+  return out;
+}
+
+}  // namespace
+
+PreparedReading prepare_reading(models::wire::ReadingInput input,
+                                const std::optional<models::BatterySpec>& spec) {
+  PreparedReading out = without_facts(std::move(input));
   if (spec) {
     out.spec = *spec;
-    out.facts = facts_of(*spec, point_of(input));
+    out.facts = facts_of(*spec, point_of(out.input));
   }
-  out.input = std::move(input);
   return out;
 }
 
 PreparedReading prepare_reading(models::wire::ReadingInput input, const models::BatterySpec& spec,
                                 const analytics::DerivedReading& derived) {
-  PreparedReading out;
-  out.hash = content_hash(input);
-  out.cell_sg_text = sqlite::encode_cell_sg(input.cell_sg);
+  PreparedReading out = without_facts(std::move(input));
   out.spec = spec;
   out.facts = facts_from(derived);
-  out.input = std::move(input);
   return out;
 }
 
