@@ -71,7 +71,7 @@ http::Reply observed(http::Reply reply, Metrics& metrics, std::string method, st
     metrics.record_request(route, r.status, took);
     spdlog::info("access method={} route={} status={} duration_ms={:.3f} bytes={} token={}",
                  method, route, r.status,
-                 std::chrono::duration<double, std::milli>(took).count(), r.body.size(), token);
+                 std::chrono::duration<double, std::milli>(took).count(), r.body_text().size(), token);
     reply(std::move(r));
   };
 }
@@ -151,7 +151,12 @@ http::Response Api::handle(http::Request request) {
   std::promise<http::Response> promise;
   auto future = promise.get_future();
   dispatch(std::move(request), [&promise](http::Response r) { promise.set_value(std::move(r)); });
-  return future.get();
+  http::Response r = future.get();
+  if (r.shared_body) {  // self-contained for its callers: the body in `body`
+    r.body = *r.shared_body;
+    r.shared_body.reset();
+  }
+  return r;
 }
 
 }  // namespace pbfleet::api

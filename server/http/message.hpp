@@ -6,6 +6,7 @@
 
 #include <functional>
 #include <map>
+#include <memory>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -32,6 +33,13 @@ struct Response {
   std::string content_type = "application/json";
   std::vector<std::pair<std::string, std::string>> headers;  // extra headers
   std::string body;
+  // Sent instead of `body` when set: a body kept elsewhere and shared by
+  // many answers (a cached report), written without a copy per answer.
+  std::shared_ptr<const std::string> shared_body;
+
+  [[nodiscard]] std::string_view body_text() const {
+    return shared_body ? std::string_view(*shared_body) : std::string_view(body);
+  }
 };
 
 // Called once with the response; may be called from any thread.

@@ -31,16 +31,23 @@ Request to_request(bhttp::request<bhttp::string_body>&& in, const std::string& p
   return out;
 }
 
-bhttp::response<bhttp::string_body> to_beast(Response&& in, bool keep_alive) {
-  bhttp::response<bhttp::string_body> out{static_cast<bhttp::status>(in.status), 11};
+// Status line and headers of `in` on `out`.
+template <class Message>
+void set_head(Message& out, const Response& in, bool keep_alive) {
+  out.result(static_cast<bhttp::status>(in.status));
+  out.version(11);
   out.set(bhttp::field::content_type, in.content_type);
   // insert, not set: a response may carry a header twice (Set-Cookie).
-  for (auto& [name, value] : in.headers) out.insert(name, value);
-  out.body() = std::move(in.body);
+  for (const auto& [name, value] : in.headers) out.insert(name, value);
   out.keep_alive(keep_alive);
-  out.prepare_payload();
-  return out;
 }
+
+// An answer whose body is shared (Response::shared_body): the message
+// points into it, and holds it while it is written.
+struct SharedAnswer {
+  std::shared_ptr<const std::string> body;
+  bhttp::response<bhttp::span_body<const char>> message;
+};
 
 }  // namespace
 
@@ -132,9 +139,24 @@ void Session::refuse(int status, std::string_view detail) {
 
 void Session::write(Response response, bool keep_alive) {
   keep_alive = keep_alive && !shared_->draining;
-  auto message = std::make_shared<bhttp::response<bhttp::string_body>>(
-      to_beast(std::move(response), keep_alive));
   stream_.expires_after(shared_->options.limits.write_timeout);
+  if (response.shared_body) {
+    auto answer = std::make_shared<SharedAnswer>();
+    answer->body = std::move(response.shared_body);
+    set_head(answer->message, response, keep_alive);
+    answer->message.body() = {answer->body->data(), answer->body->size()};
+    answer->message.prepare_payload();
+    bhttp::async_write(stream_, answer->message,
+                       [self = shared_from_this(), answer, keep_alive](beast::error_code ec,
+                                                                       std::size_t) {
+                         self->on_write(keep_alive, ec);
+                       });
+    return;
+  }
+  auto message = std::make_shared<bhttp::response<bhttp::string_body>>();
+  set_head(*message, response, keep_alive);
+  message->body() = std::move(response.body);
+  message->prepare_payload();
   bhttp::async_write(stream_, *message,
                      [self = shared_from_this(), message, keep_alive](beast::error_code ec,
                                                                       std::size_t) {

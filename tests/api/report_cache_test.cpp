@@ -5,6 +5,8 @@
 
 #include <doctest/doctest.h>
 
+#include <future>
+
 #include "server/api/report_codec.hpp"
 #include "server/api/services/reports.hpp"
 #include "tests/api/fixture.hpp"
@@ -171,6 +173,43 @@ TEST_CASE("a report answer carries an ETag, and asking with it gives 304 until t
   const auto after = get("/v1/reports/winter", tag);
   CHECK(after.status == 200);
   CHECK(etag_of(after) != tag);
+}
+
+}  // namespace pbfleet::api
+
+namespace pbfleet::api {
+
+TEST_CASE("a cached report is sent as the cached text itself, not a copy per answer") {
+  ApiFixture f;
+  REQUIRE(f.post("/v1/readings", good_reading("NY-0001", "share-1"), "crew").status == 201);
+  // Through dispatch, as the transport calls it.
+  auto ask = [&](const std::string& accept) {
+    http::Request r;
+    r.method = "GET";
+    r.target = "/v1/reports/winter";
+    r.peer = "127.0.0.1:40000";
+    r.headers["authorization"] = "Bearer " + f.token("manager");
+    if (!accept.empty()) r.headers["accept"] = accept;
+    std::promise<http::Response> answer;
+    f.api().dispatch(std::move(r), [&](http::Response res) { answer.set_value(std::move(res)); });
+    return answer.get_future().get();
+  };
+  const http::Response first = ask("");
+  const http::Response second = ask("");
+  REQUIRE(first.status == 200);
+  REQUIRE(first.shared_body);
+  CHECK(first.shared_body == second.shared_body);  // one text in memory, sent twice
+  CHECK(first.body.empty());
+  CHECK_FALSE(nlohmann::json::parse(first.body_text())["batteries"].empty());
+  // The CSV form is its own text, shared the same way.
+  const http::Response csv = ask("text/csv");
+  REQUIRE(csv.shared_body);
+  CHECK(csv.shared_body != first.shared_body);
+  CHECK(csv.content_type.starts_with("text/csv"));
+  // handle() (tests, tools) gives the same answer with the body in `body`.
+  const http::Response handled = f.get("/v1/reports/winter", "manager");
+  CHECK_FALSE(handled.shared_body);
+  CHECK(handled.body == *first.shared_body);
 }
 
 }  // namespace pbfleet::api
