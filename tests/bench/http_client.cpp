@@ -1,8 +1,11 @@
 #include "tests/bench/http_client.hpp"
 
+#include <algorithm>
+#include <limits>
 #include <utility>
 
 #include <boost/asio/connect.hpp>
+#include <boost/asio/read.hpp>
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/tcp.hpp>
 #include <boost/beast/core/flat_buffer.hpp>
@@ -54,12 +57,25 @@ HttpReply HttpClient::send(std::string_view method, std::string_view target, std
   boost::system::error_code ec;
   bhttp::write(impl_->socket, req, ec);
   if (ec) throw std::runtime_error("write: " + ec.message());
-  bhttp::response_parser<bhttp::string_body> parser;
-  parser.body_limit(512 * 1024 * 1024);  // reports of a large fleet are big
-  bhttp::read(impl_->socket, impl_->buffer, parser, ec);
+  // The head through Beast; the body (pbfleetd always sends a
+  // Content-Length) straight into one string of its size, so the client
+  // costs little beside a server answer of many megabytes.
+  bhttp::response_parser<bhttp::empty_body> parser;
+  parser.body_limit(std::numeric_limits<std::uint64_t>::max());  // the body is read below
+  bhttp::read_header(impl_->socket, impl_->buffer, parser, ec);
   if (ec) throw std::runtime_error("read: " + ec.message());
-  auto res = parser.release();
-  return {static_cast<int>(res.result_int()), std::move(res.body()), std::string(res[bhttp::field::etag])};
+  const auto& head = parser.get();
+  HttpReply reply{static_cast<int>(head.result_int()), {}, std::string(head[bhttp::field::etag])};
+  if (parser.is_done()) return reply;  // no body (304, or Content-Length: 0)
+  const auto length = parser.content_length();
+  if (!length) throw std::runtime_error("read: an answer without Content-Length");
+  reply.body.resize(static_cast<std::size_t>(*length));
+  const std::size_t buffered = std::min(impl_->buffer.size(), reply.body.size());
+  asio::buffer_copy(asio::buffer(reply.body.data(), buffered), impl_->buffer.data());
+  impl_->buffer.consume(buffered);
+  asio::read(impl_->socket, asio::buffer(reply.body.data() + buffered, reply.body.size() - buffered), ec);
+  if (ec) throw std::runtime_error("read body: " + ec.message());
+  return reply;
 }
 
 }  // namespace pbfleet::bench
