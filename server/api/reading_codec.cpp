@@ -23,8 +23,8 @@ std::optional<wire::EnteredTemperature> read_temperature(FieldReader& in, const 
     in.invalid(base + "_f", "give the temperature once", base + "_c or " + base + "_f");
     return std::nullopt;
   }
-  if (c) return wire::EnteredTemperature{models::Celsius{*c}, wire::TempUnit::c};
-  if (f) return wire::EnteredTemperature{models::celsius_from_fahrenheit(*f), wire::TempUnit::f};
+  if (c) return entered_temperature(*c, wire::TempUnit::c);
+  if (f) return entered_temperature(*f, wire::TempUnit::f);
   return std::nullopt;
 }
 
@@ -46,7 +46,7 @@ void read_cells(FieldReader& in, wire::ReadingInput& r) {
 }
 
 void read_times(FieldReader& in, wire::ReadingInput& r) {
-  if (auto t = in.text("taken_at", true, 40)) {
+  if (auto t = in.text("taken_at", true, kTimestampTextCap)) {
     auto parsed = wire::parse_timestamp(*t, "taken_at");
     if (parsed) {
       r.taken_at = *parsed;
@@ -58,13 +58,18 @@ void read_times(FieldReader& in, wire::ReadingInput& r) {
 
 }  // namespace
 
+wire::EnteredTemperature entered_temperature(double value, wire::TempUnit unit) {
+  const models::Celsius c =
+      unit == wire::TempUnit::f ? models::celsius_from_fahrenheit(value) : models::Celsius{value};
+  return wire::EnteredTemperature{c, unit};
+}
+
 wire::ReadingInput read_reading(FieldReader& in) {
   wire::ReadingInput r;
-  // Strings are length-checked by validate_reading; this bound only keeps
-  // absurd inputs out of memory.
-  constexpr std::size_t kTextCap = 4096;
-  if (auto v = in.text("reading_id", false, kTextCap)) r.reading_id = *v;
-  if (auto v = in.text("serial", true, kTextCap)) r.serial = *v;
+  // Strings are length-checked by validate_reading (kReadingTextCap only
+  // keeps absurd inputs out of memory).
+  if (auto v = in.text("reading_id", false, kReadingTextCap)) r.reading_id = *v;
+  if (auto v = in.text("serial", true, kReadingTextCap)) r.serial = *v;
   read_times(in, r);
   if (auto v = any_number(in, "ocv_v")) r.ocv = models::Volts{*v};
   read_cells(in, r);
@@ -73,9 +78,9 @@ wire::ReadingInput read_reading(FieldReader& in) {
   if (auto v = any_number(in, "rest_h")) r.rest = models::Hours{*v};
   if (auto v = any_number(in, "load_test_a")) r.load_test_current = models::Amperes{*v};
   if (auto v = any_number(in, "load_test_end_v")) r.load_test_end = models::Volts{*v};
-  if (auto v = in.text("logged_by", false, kTextCap)) r.logged_by = *v;
-  if (auto v = in.text("source", false, kTextCap)) r.source = *v;
-  if (auto v = in.text("note", false, kTextCap)) r.note = *v;
+  if (auto v = in.text("logged_by", false, kReadingTextCap)) r.logged_by = *v;
+  if (auto v = in.text("source", false, kReadingTextCap)) r.source = *v;
+  if (auto v = in.text("note", false, kReadingTextCap)) r.note = *v;
   if (auto v = in.boolean("after_charge", false)) r.after_charge = *v;
   if (auto v = in.boolean("water_added", false)) r.water_added = *v;
   in.finish();

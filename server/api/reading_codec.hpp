@@ -14,6 +14,15 @@
 
 namespace pbfleet::api {
 
+// Length caps of the decoder (absurd inputs stay out of memory; the real
+// limits are validate_reading's), shared by read_reading and the SAX
+// reader (reading_stream.hpp) so both take the same bodies.
+inline constexpr std::size_t kReadingTextCap = 4096;
+inline constexpr std::size_t kTimestampTextCap = 40;
+
+// A temperature as entered: stored in Celsius with the unit given.
+models::wire::EnteredTemperature entered_temperature(double value, models::wire::TempUnit unit);
+
 // Fields of one reading object (pointer prefix from `in`).
 models::wire::ReadingInput read_reading(FieldReader& in);
 

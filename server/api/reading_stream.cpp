@@ -6,6 +6,8 @@
 #include <nlohmann/json.hpp>
 #include <string>
 
+#include "server/api/reading_codec.hpp"
+
 namespace pbfleet::api {
 
 namespace wire = models::wire;
@@ -13,9 +15,6 @@ using nlohmann::json;
 
 namespace {
 
-// The caps read_reading gives FieldReader::text.
-constexpr std::size_t kTextCap = 4096;
-constexpr std::size_t kTimestampCap = 40;
 
 enum class Field : std::uint8_t {
   reading_id, serial, taken_at, ocv_v, cell_sg, electrolyte_temp_c, electrolyte_temp_f,
@@ -72,7 +71,7 @@ class ReadingSax {
       case Field::source: return text(v, r_.source);
       case Field::note: return text(v, r_.note);
       case Field::taken_at: {
-        if (v.empty() || v.size() > kTimestampCap) return false;
+        if (v.empty() || v.size() > kTimestampTextCap) return false;
         auto t = wire::parse_timestamp(v, "taken_at");
         if (!t) return false;
         r_.taken_at = *t;
@@ -138,7 +137,7 @@ class ReadingSax {
 
  private:
   bool text(string_t& v, std::string& into) {
-    if (v.size() > kTextCap) return false;
+    if (v.size() > kReadingTextCap) return false;
     into = std::move(v);
     return true;
   }
@@ -152,18 +151,10 @@ class ReadingSax {
     if (!in_object_) return false;
     switch (field_) {
       case Field::ocv_v: r_.ocv = models::Volts{v}; break;
-      case Field::electrolyte_temp_c:
-        r_.electrolyte = wire::EnteredTemperature{models::Celsius{v}, wire::TempUnit::c};
-        break;
-      case Field::electrolyte_temp_f:
-        r_.electrolyte = wire::EnteredTemperature{models::celsius_from_fahrenheit(v), wire::TempUnit::f};
-        break;
-      case Field::ambient_temp_c:
-        r_.ambient = wire::EnteredTemperature{models::Celsius{v}, wire::TempUnit::c};
-        break;
-      case Field::ambient_temp_f:
-        r_.ambient = wire::EnteredTemperature{models::celsius_from_fahrenheit(v), wire::TempUnit::f};
-        break;
+      case Field::electrolyte_temp_c: r_.electrolyte = entered_temperature(v, wire::TempUnit::c); break;
+      case Field::electrolyte_temp_f: r_.electrolyte = entered_temperature(v, wire::TempUnit::f); break;
+      case Field::ambient_temp_c: r_.ambient = entered_temperature(v, wire::TempUnit::c); break;
+      case Field::ambient_temp_f: r_.ambient = entered_temperature(v, wire::TempUnit::f); break;
       case Field::rest_h: r_.rest = models::Hours{v}; break;
       case Field::load_test_a: r_.load_test_current = models::Amperes{v}; break;
       case Field::load_test_end_v: r_.load_test_end = models::Volts{v}; break;

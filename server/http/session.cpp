@@ -140,28 +140,25 @@ void Session::refuse(int status, std::string_view detail) {
 void Session::write(Response response, bool keep_alive) {
   keep_alive = keep_alive && !shared_->draining;
   stream_.expires_after(shared_->options.limits.write_timeout);
+  // `owner` keeps `message` (and what it points into) alive until written.
+  auto send = [&](auto owner, auto& message) {
+    set_head(message, response, keep_alive);
+    message.prepare_payload();
+    bhttp::async_write(stream_, message,
+                       [self = shared_from_this(), owner, keep_alive](beast::error_code ec,
+                                                                      std::size_t) {
+                         self->on_write(keep_alive, ec);
+                       });
+  };
   if (response.shared_body) {
     auto answer = std::make_shared<SharedAnswer>();
     answer->body = std::move(response.shared_body);
-    set_head(answer->message, response, keep_alive);
     answer->message.body() = {answer->body->data(), answer->body->size()};
-    answer->message.prepare_payload();
-    bhttp::async_write(stream_, answer->message,
-                       [self = shared_from_this(), answer, keep_alive](beast::error_code ec,
-                                                                       std::size_t) {
-                         self->on_write(keep_alive, ec);
-                       });
-    return;
+    return send(answer, answer->message);
   }
   auto message = std::make_shared<bhttp::response<bhttp::string_body>>();
-  set_head(*message, response, keep_alive);
   message->body() = std::move(response.body);
-  message->prepare_payload();
-  bhttp::async_write(stream_, *message,
-                     [self = shared_from_this(), message, keep_alive](beast::error_code ec,
-                                                                      std::size_t) {
-                       self->on_write(keep_alive, ec);
-                     });
+  send(message, *message);
 }
 
 void Session::on_write(bool keep_alive, beast::error_code ec) {

@@ -62,8 +62,8 @@ namespace {
 // The fingerprint and stored cell SGs, facts left empty.
 PreparedReading without_facts(models::wire::ReadingInput input) {
   PreparedReading out;
-  out.hash = content_hash(input);
   out.cell_sg_text = sqlite::encode_cell_sg(input.cell_sg);
+  out.hash = content_hash(input, out.cell_sg_text);
   out.input = std::move(input);
   return out;
 }

@@ -48,6 +48,8 @@ ReadingFacts facts_from(const analytics::DerivedReading& derived);
 // replay.
 using ContentHash = std::array<unsigned char, 16>;
 ContentHash content_hash(const models::wire::ReadingInput& reading);
+// The same when the cell SGs are encoded already (encode_cell_sg).
+ContentHash content_hash(const models::wire::ReadingInput& reading, std::string_view cell_sg_text);
 
 // A reading with the per-reading work of storing it done beforehand, on the
 // caller's thread, so that the one thread that writes does little more

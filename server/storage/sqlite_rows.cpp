@@ -178,14 +178,17 @@ void decode_cell_sg_into(std::string_view text, std::vector<models::SpecificGrav
 namespace pbfleet::storage {
 
 ContentHash content_hash(const models::wire::ReadingInput& r) {
+  return content_hash(r, sqlite::encode_cell_sg(r.cell_sg));
+}
+
+ContentHash content_hash(const models::wire::ReadingInput& r, std::string_view cell_sg_text) {
   using sqlite::Canonical;
-  using sqlite::encode_cell_sg;
   using sqlite::fail;
   Canonical c;
   c.add(r.serial);
   c.add(std::to_string(r.taken_at.time_since_epoch().count()));
   c.add(r.ocv);
-  c.add(encode_cell_sg(r.cell_sg));
+  c.add(cell_sg_text);
   c.add(r.electrolyte);
   c.add(r.ambient);
   c.add(r.rest);
