@@ -14,6 +14,7 @@
 #include <boost/asio/steady_timer.hpp>
 
 #include "server/http/session.hpp"
+#include "server/http/thread_name.hpp"
 
 namespace pbfleet::http {
 
@@ -152,7 +153,10 @@ void Server::run() {
   net::dispatch(impl.acceptor.get_executor(), [&impl] { impl.accept(); });
   std::vector<std::thread> threads;
   for (std::size_t i = 1; i < impl.shared->options.io_threads; ++i)
-    threads.emplace_back([&impl] { impl.ioc.run(); });
+    threads.emplace_back([&impl] {
+      name_this_thread("http-io");
+      impl.ioc.run();
+    });
   impl.ioc.run();
   for (auto& t : threads) t.join();
 }

@@ -82,6 +82,7 @@ struct Shape {
   std::int64_t expiry_column = 0;
   std::int64_t sessions_table = 0;
   std::int64_t summaries_table = 0;
+  bool fast_trusted_trigger = false;  // schema 0005's readings_summary_trusted
   std::string integrity;
 };
 
@@ -91,6 +92,8 @@ Shape shape_of(const std::filesystem::path& db) {
           probe.integer("SELECT count(*) FROM pragma_table_info('api_tokens') WHERE name = 'expires_at'"),
           probe.integer("SELECT count(*) FROM sqlite_schema WHERE name = 'web_sessions'"),
           probe.integer("SELECT count(*) FROM sqlite_schema WHERE name = 'battery_summaries'"),
+          probe.integer("SELECT count(*) FROM sqlite_schema WHERE name = 'readings_summary_trusted'"
+                        " AND sql LIKE '%trusted_id IS NOT NEW.id%'") == 1,
           probe.integrity()};
 }
 
@@ -103,7 +106,10 @@ bool whole_version(const Shape& s) {
     case 1: return s.expiry_column == 0 && s.sessions_table == 0 && s.summaries_table == 0;
     case 2: return s.expiry_column == 1 && s.sessions_table == 0 && s.summaries_table == 0;
     case 3: return s.expiry_column == 1 && s.sessions_table == 1 && s.summaries_table == 0;
-    case 4: return s.expiry_column == 1 && s.sessions_table == 1 && s.summaries_table == 1;
+    case 4: return s.expiry_column == 1 && s.sessions_table == 1 && s.summaries_table == 1 &&
+                   !s.fast_trusted_trigger;
+    case 5: return s.expiry_column == 1 && s.sessions_table == 1 && s.summaries_table == 1 &&
+                   s.fast_trusted_trigger;
     default: return false;
   }
 }
@@ -112,13 +118,13 @@ TEST_CASE("a migration killed at random moments leaves a whole version, and a re
   TempDir dir("pbfleet-migrate");
   const auto v1 = dir / "v1.db";
   {
-    // A current database with a fleet and tokens, then migrations 0002 to 0004 undone.
+    // A current database with a fleet and tokens, then migrations 0002 to 0005 undone.
     LiveFleet fleet({.batteries_per_depot = 2, .extra_args = {}, .log_level = "warn", .database = {}});
     REQUIRE(fleet.client("crew").post("/v1/readings", good_reading(fleet.serials("North Yard")[0], "m-1", 1)).status == 201);
     REQUIRE(fleet.server().terminate() == 0);
     {
       SqliteProbe probe(fleet.db());
-      REQUIRE(probe.integer("SELECT max(version) FROM schema_version") == 4);
+      REQUIRE(probe.integer("SELECT max(version) FROM schema_version") == 5);
       for (const char* trigger :
            {"readings_summary_untrusted", "readings_summary_trusted", "readings_summary_deleted",
             "batteries_summary", "depots_changed_insert", "depots_changed_update",
@@ -169,8 +175,8 @@ TEST_CASE("a migration killed at random moments leaves a whole version, and a re
     CHECK(after.integrity == "ok");
     CHECK(whole_version(after));
     at_old += after.version == 1;
-    between += after.version == 2 || after.version == 3;
-    at_new += after.version == 4;
+    between += after.version >= 2 && after.version <= 4;
+    at_new += after.version == 5;
     // A normal start finishes the migration and serves the old data.
     ServerConfig config;
     config.db = work;
@@ -179,11 +185,11 @@ TEST_CASE("a migration killed at random moments leaves a whole version, and a re
     ServerProcess restarted(config);
     CHECK(restarted.terminate() == 0);
     const Shape done = shape_of(work);
-    CHECK(done.version == 4);
+    CHECK(done.version == 5);
     CHECK(whole_version(done));
     SqliteProbe probe(work);
     CHECK(probe.integer("SELECT count(*) FROM readings WHERE reading_id = 'm-1'") == 1);
-    // A kill after 0004 but before the summaries were made leaves them
+    // A kill after 0005 but before the summaries were made leaves them
     // unmade (facts_version empty); the restart makes them.
     CHECK(probe.integer("SELECT count(*) FROM summary_state WHERE name = 'facts_version' AND value <> ''") == 1);
     CHECK(probe.integer("SELECT s.recent FROM battery_summaries s JOIN readings r ON r.battery_id = s.battery_id"

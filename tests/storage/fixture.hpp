@@ -124,16 +124,16 @@ struct Fleet {
   }
 };
 
-// A plausible weekly reading (values are illustrative, not checked).
 // Batches for Store::append_reading_batches, prepared as the API
 // prepares them but without specs (the store works the facts out).
 inline std::vector<std::vector<PreparedReading>> prepared(
-    std::initializer_list<std::vector<models::wire::ReadingInput>> batches) {
+    const std::vector<std::vector<models::wire::ReadingInput>>& batches) {
   std::vector<std::vector<PreparedReading>> out;
   for (const auto& b : batches) out.push_back(prepare_readings(b));
   return out;
 }
 
+// A plausible weekly reading (values are illustrative, not checked).
 inline models::wire::ReadingInput reading(std::string id, std::string serial, int day) {
   models::wire::ReadingInput r;
   r.reading_id = std::move(id);

@@ -194,6 +194,46 @@ STORE_TEST_CASE("group commit accepts and refuses each batch on its own in one t
   CHECK(f.store->readings_count().value() == 1 + 3 + 2);
   const auto all = f.store->list_readings({}, {}).value().items;
   for (const auto& r : all) CHECK(r.reading_id.rfind("g2-", 0) != 0);
+  // The accepted batches' answers still carry their readings as given,
+  // though the group was written a second time because of the refused one.
+  const auto first = week_round("g1-", 3);
+  REQUIRE((*outcomes)[0].readings.size() == first.size());
+  for (std::size_t i = 0; i < first.size(); ++i) {
+    CHECK((*outcomes)[0].readings[i].reading_id == first[i].reading_id);
+    CHECK((*outcomes)[0].readings[i].serial == first[i].serial);
+    CHECK((*outcomes)[0].readings[i].id > 0);
+  }
+  CHECK((*outcomes)[3].readings.at(1).reading_id == week_round("g4-", 2, 10).at(1).reading_id);
+}
+
+STORE_TEST_CASE("a clean group goes in whole, each answer holding its readings as given") {
+  Fleet<Backend> f;
+  REQUIRE(f.store->append_readings({reading("seen", "NY-0001", 1)}, at(1))->accepted());
+  auto noted = week_round("c2-", 2, 5);
+  noted[0].note = "topped up cell 3";
+  const std::vector<std::vector<ReadingInput>> given = {
+      week_round("c1-", 3), noted, {reading("seen", "NY-0001", 1), reading("c3-a", "NY-0001", 9)}};
+  const auto outcomes = f.store->append_reading_batches(testing::prepared(given), at(20)).value();
+  REQUIRE(outcomes.size() == given.size());
+  std::set<Id> ids;
+  for (std::size_t b = 0; b < given.size(); ++b) {
+    CAPTURE(b);
+    REQUIRE(outcomes[b].accepted());
+    REQUIRE(outcomes[b].readings.size() == given[b].size());
+    REQUIRE(outcomes[b].replayed.size() == given[b].size());
+    for (std::size_t i = 0; i < given[b].size(); ++i) {
+      const StoredReading& r = outcomes[b].readings[i];
+      CHECK(r.reading_id == given[b][i].reading_id);
+      CHECK(r.taken_at == given[b][i].taken_at);
+      CHECK(r.note == given[b][i].note);
+      ids.insert(r.id);
+    }
+  }
+  CHECK(outcomes[2].replayed == std::vector<bool>{true, false});
+  CHECK(outcomes[2].readings[0].received_at == at(1));  // the original, as first stored
+  CHECK(outcomes[0].readings[0].received_at == at(20));
+  CHECK(ids.size() == 3 + 2 + 2);
+  CHECK(f.store->readings_count().value() == 1 + 3 + 2 + 1);
 }
 
 STORE_TEST_CASE("texts with quotes, backslashes, braces, commas and NULL read back verbatim") {

@@ -3,14 +3,24 @@
 #include <exception>
 #include <utility>
 
+#include "server/http/thread_name.hpp"
+
+#include "server/http/thread_name.hpp"
+
 namespace pbfleet::api {
 
 ReadingWriter::ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options)
     : store_(store),
       clock_(clock),
       options_(options),
-      acknowledger_([this] { acknowledge(); }),
-      thread_([this] { run(); }) {}
+      acknowledger_([this] {
+        http::name_this_thread("reading-acks");
+        acknowledge();
+      }),
+      thread_([this] {
+        http::name_this_thread("reading-writer");
+        run();
+      }) {}
 
 ReadingWriter::~ReadingWriter() {
   {
