@@ -19,6 +19,9 @@ struct Api::Impl {
   ReadingWriter writer;
   ReportCache reports;
   TrendMemo trends;
+  // A history answer depends on no clock, only on its battery's version;
+  // 128 answers of 260 readings take about 30 MB.
+  ReportCache histories{ReportCacheOptions{.max_entries = 128, .max_age = std::chrono::hours{1}}};
   Context context;
   Pages* pages = nullptr;
 
@@ -26,7 +29,7 @@ struct Api::Impl {
       : options(std::move(o)),
         auth(store, clock, options.auth),
         writer(store, clock, options.writer),
-        context{store, clock, metrics, auth, writer, options, reports, trends} {}
+        context{store, clock, metrics, auth, writer, options, reports, trends, histories} {}
 };
 
 const std::string& Call::param(const std::string& name) const {

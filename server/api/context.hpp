@@ -32,8 +32,9 @@ struct Context {
   Authenticator& auth;
   ReadingWriter& writer;
   const ApiOptions& options;
-  ReportCache& reports;  // built reports and their rendered bodies
-  TrendMemo& trends;     // sulfation bases per battery, between reports
+  ReportCache& reports;    // built reports and their rendered bodies
+  TrendMemo& trends;       // sulfation bases per battery, between reports
+  ReportCache& histories;  // rendered battery histories, per battery version
 };
 
 // One request as a handler sees it.

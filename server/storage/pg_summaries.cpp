@@ -111,4 +111,15 @@ StoreResult<std::int64_t> PgStore::data_version() {
   });
 }
 
+StoreResult<BatteryVersion> PgStore::battery_version(Id battery_id) {
+  return read_one([&](Tx& tx) {
+    const auto rows = tx.exec_params(
+        "SELECT s.revision, c.value FROM battery_summaries s, counters c"
+        " WHERE s.battery_id = $1 AND c.name = 'fleet_changes'",
+        battery_id);
+    if (rows.empty()) fail(StoreErrc::not_found, "no battery with id " + std::to_string(battery_id));
+    return BatteryVersion{rows[0][0].as<std::int64_t>(), rows[0][1].as<std::int64_t>()};
+  });
+}
+
 }  // namespace pbfleet::storage::pg

@@ -70,6 +70,7 @@ class SqliteStore final : public Store {
   StoreResult<std::int64_t> readings_count() override;
   StoreResult<Done> visit_summaries(const BatteryFilter& filter, const SummaryVisitor& visit) override;
   StoreResult<std::int64_t> data_version() override;
+  StoreResult<BatteryVersion> battery_version(Id battery_id) override;
 
   StoreResult<ApiToken> create_token(std::string_view name, Role role, std::optional<Id> depot_id,
                                      const TokenHash& hash, std::chrono::sys_seconds at,

@@ -121,4 +121,15 @@ StoreResult<std::int64_t> SqliteStore::data_version() {
   });
 }
 
+StoreResult<BatteryVersion> SqliteStore::battery_version(Id battery_id) {
+  return read([&](Db& db) {
+    auto s = db.prepare(
+        "SELECT s.revision, c.value FROM battery_summaries s, counters c"
+        " WHERE s.battery_id = ?1 AND c.name = 'fleet_changes'");
+    if (!s.bind(1, battery_id).step())
+      fail(StoreErrc::not_found, "no battery with id " + std::to_string(battery_id));
+    return BatteryVersion{s.int_at(0), s.int_at(1)};
+  });
+}
+
 }  // namespace pbfleet::storage::sqlite

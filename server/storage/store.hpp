@@ -129,6 +129,16 @@ struct AppendOutcome {
   [[nodiscard]] bool accepted() const { return problems.empty(); }
 };
 
+// The version of one battery's history: its summary revision, which moves
+// on with every reading stored for it, and the fleet change count (depots,
+// vehicles, batteries and the events that come with them). Equal versions
+// mean an equal history, in every process sharing the database.
+struct BatteryVersion {
+  std::int64_t revision = 0;
+  std::int64_t fleet_changes = 0;
+  friend bool operator==(const BatteryVersion&, const BatteryVersion&) = default;
+};
+
 // One battery with some of its readings, newest first (reports).
 struct BatteryReadings {
   Battery battery;
@@ -255,6 +265,8 @@ class Store {
   // vehicles or batteries, in every process sharing the database (O(1)):
   // equal versions mean equal report inputs (the report cache's key).
   virtual StoreResult<std::int64_t> data_version() = 0;
+  // What one battery's history depends on (O(1)); not_found for an unknown id.
+  virtual StoreResult<BatteryVersion> battery_version(Id battery_id) = 0;
 
   // API tokens. Only the hash is stored. `expires_at` (nullopt: never)
   // must lie after `at` (invalid, field "expires_at", otherwise).

@@ -313,4 +313,23 @@ STORE_TEST_CASE("a battery's summary revision moves on with each reading stored 
   CHECK(r3.at("NY-0002") == r0.at("NY-0002"));
 }
 
+STORE_TEST_CASE("a battery's version is its summary revision and the fleet change count") {
+  Fleet<Backend> f;
+  const Id one = f.store->get_battery("NY-0001").value().id;
+  const auto v0 = f.store->battery_version(one).value();
+  REQUIRE(f.store->append_readings({testing::reading("bv-1", "NY-0001", 9)}, at(10)).ok());
+  const auto v1 = f.store->battery_version(one).value();
+  CHECK(v1.revision > v0.revision);
+  CHECK(v1.fleet_changes == v0.fleet_changes);
+  // Another battery: a fleet change, then its reading; this battery's
+  // revision stays.
+  REQUIRE(f.store->create_battery(Fleet<Backend>::make_battery("NY-0002", f.vehicle.id), at(11)).ok());
+  REQUIRE(f.store->append_readings({testing::reading("bv-2", "NY-0002", 9)}, at(12)).ok());
+  const auto v2 = f.store->battery_version(one).value();
+  CHECK(v2.revision == v1.revision);
+  CHECK(v2.fleet_changes > v1.fleet_changes);
+  CHECK(f.store->battery_version(one).value() == v2);  // reads change nothing
+  CHECK(f.store->battery_version(999'999).error().code == StoreErrc::not_found);
+}
+
 }  // namespace pbfleet::storage

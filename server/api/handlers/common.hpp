@@ -4,7 +4,11 @@
 
 #include <functional>
 #include <optional>
+#include <string>
+#include <string_view>
+#include <utility>
 #include <variant>
+#include <vector>
 
 #include <nlohmann/json.hpp>
 
@@ -24,6 +28,17 @@ http::Response bad_id(const std::string& name, const std::string& text);
 // a scoped token sees only its depot's objects). Out of scope answers 404,
 // like a missing object, so ids cannot be probed.
 bool in_scope(const Call& call, std::optional<storage::Id> depot);
+
+// A strong validator for an answer kept in a cache: FNV-1a over the cache
+// key and the data version it was built at, quoted. Equal tags mean the
+// same bytes.
+std::string strong_etag(std::string_view key, std::int64_t version);
+
+// 304 with `validators` (ETag and Cache-Control) when the request's
+// If-None-Match names `etag`.
+std::optional<http::Response> not_modified(const Call& call, const std::string& etag,
+                                           std::string_view content_type,
+                                           const std::vector<std::pair<std::string, std::string>>& validators);
 
 // Decodes the body as one JSON object with `read`; the problem response
 // (415, 400, 422) when anything is wrong.

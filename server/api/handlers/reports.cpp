@@ -30,21 +30,11 @@ bool report_depot(const Call& call, std::optional<storage::Id>& depot,
   return errors.empty();
 }
 
-// A strong validator for one rendered report: FNV-1a over the cache key
-// (report, scope, parameters, format) and the data version. Equal tags
-// mean the same bytes for as long as the cache would serve them.
+// A strong validator for one rendered report (report, scope, parameters,
+// format, data version). Reports measure data ages against now: a tag
+// lasts the minute at most.
 std::string report_etag(const std::string& key, std::int64_t version, std::chrono::sys_seconds now) {
-  std::uint64_t h = 1469598103934665603ull;
-  auto mix = [&](std::string_view text) {
-    for (const unsigned char c : text) h = (h ^ c) * 1099511628211ull;
-  };
-  mix(key);
-  mix("|" + std::to_string(version));
-  // Reports measure data ages against now: a tag lasts the minute at most.
-  mix("|" + std::to_string(now.time_since_epoch().count() / 60));
-  char text[24];
-  std::snprintf(text, sizeof text, "\"%016llx\"", static_cast<unsigned long long>(h));
-  return text;
+  return strong_etag(key + "|minute=" + std::to_string(now.time_since_epoch().count() / 60), version);
 }
 
 // The report's body in the format asked for, rendered once per data
@@ -60,13 +50,8 @@ http::Response answer(const Call& call, const std::string& key, Report&& report,
   const std::string etag = report_etag(format_key, *version, call.ctx.clock.now());
   const std::vector<std::pair<std::string, std::string>> validators{
       {"ETag", etag}, {"Cache-Control", "private, no-cache"}};
-  if (call.request.header("if-none-match") == etag) {
-    http::Response not_modified;
-    not_modified.status = 304;
-    not_modified.content_type = as_csv ? "text/csv; charset=utf-8" : "application/json";
-    not_modified.headers = validators;
-    return not_modified;
-  }
+  const char* content_type = as_csv ? "text/csv; charset=utf-8" : "application/json";
+  if (auto unchanged = not_modified(call, etag, content_type, validators)) return std::move(*unchanged);
   auto body = call.ctx.reports.get<std::string>(
       format_key, *version, call.ctx.clock.now(),
       [&]() -> storage::StoreResult<std::string> {
@@ -77,7 +62,7 @@ http::Response answer(const Call& call, const std::string& key, Report&& report,
   if (!body) return store_problem(body.error());
   // The cached text itself goes out, not a copy (reports run to megabytes).
   http::Response r;
-  r.content_type = as_csv ? "text/csv; charset=utf-8" : "application/json";
+  r.content_type = content_type;
   r.shared_body = *body;
   r.headers = validators;
   return r;
