@@ -30,15 +30,17 @@ std::string when(const Json& r) {
   return t;
 }
 
-// The electrolyte temperature as it was entered.
+// The electrolyte temperature in the unit it was entered in, to 0.1
+// degree: the server keeps Celsius (electrolyte_temp_c) beside that unit
+// (electrolyte_temp_unit), so 27F reads back as 27F, not -2.77778C.
 Json entered_temperature(const Json& r) {
-  if (r.contains("electrolyte_temp_f") && r["electrolyte_temp_f"].is_number()) {
-    return fmt::format("{:g}F", r["electrolyte_temp_f"].get<double>());
-  }
-  if (r.contains("electrolyte_temp_c") && r["electrolyte_temp_c"].is_number()) {
-    return fmt::format("{:g}C", r["electrolyte_temp_c"].get<double>());
-  }
-  return nullptr;
+  const auto c = r.find("electrolyte_temp_c");
+  if (c == r.end() || !c->is_number()) return nullptr;
+  const auto unit = r.find("electrolyte_temp_unit");
+  const bool fahrenheit = unit != r.end() && unit->is_string() && *unit == "F";
+  const double value = fahrenheit ? c->get<double>() * 9.0 / 5.0 + 32.0 : c->get<double>();
+  const double tenths = std::round(value * 10.0) / 10.0;
+  return fmt::format("{:g}{}", tenths == 0.0 ? 0.0 : tenths, fahrenheit ? "F" : "C");
 }
 
 Json mean_sg(const Json& r) {

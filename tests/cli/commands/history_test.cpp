@@ -13,11 +13,11 @@ namespace {
 
 const char* kHistory = R"({"battery":{"serial":"NB-2023-0001","chemistry":"flooded","rated_cca_a":800,"installed_on":"2023-10-02","status":"in_service"},
  "readings":[
-  {"taken_at":"2026-10-05T07:15:00Z","ocv_v":12.62,"rest_h":14,"cell_sg":[1.262,1.266],"electrolyte_temp_f":50,
+  {"taken_at":"2026-10-05T07:15:00Z","ocv_v":12.62,"rest_h":14,"cell_sg":[1.262,1.266],"electrolyte_temp_c":10.000000000000002,"electrolyte_temp_unit":"F",
    "derived":{"corrected_sg":1.254,"soc_percent":88.0,"soc_uncertainty_percent":4,"cell_spread":0.004,"weak_cell":null,"flags":[]}},
-  {"taken_at":"2026-11-02T07:10:00Z","ocv_v":12.48,"rest_h":2,"electrolyte_temp_c":2,
+  {"taken_at":"2026-11-02T07:10:00Z","ocv_v":12.48,"rest_h":2,"electrolyte_temp_c":2,"electrolyte_temp_unit":"C",
    "derived":{"soc_percent":71.0,"soc_uncertainty_percent":12,"flags":["ocv_unsettled"]}},
-  {"taken_at":"2026-11-30T07:20:00Z","cell_sg":[1.220,1.225],"electrolyte_temp_c":-1,
+  {"taken_at":"2026-11-30T07:20:00Z","cell_sg":[1.220,1.225],"electrolyte_temp_c":-2.7777777777777777,"electrolyte_temp_unit":"F",
    "derived":{"corrected_sg":1.208,"soc_percent":62.0,"soc_uncertainty_percent":4,"flags":["low_soc"]}}],
  "events":[{"at":"2026-11-02T12:00:00Z","kind":"charged","detail":"bench charger"}]})";
 
@@ -28,6 +28,7 @@ TEST_CASE("history rows keep the temperature as entered and average the raw cell
   REQUIRE(rows.size() == 3);
   CHECK(rows[0]["temp"] == "50F");
   CHECK(rows[1]["temp"] == "2C");
+  CHECK(rows[2]["temp"] == "27F");  // kept as -2.777...C
   CHECK(rows[0]["raw_sg"].get<double>() == doctest::Approx(1.264));
   CHECK(rows[1]["raw_sg"].is_null());
   CHECK(rows[2]["flags"][0] == "low_soc");
