@@ -1,6 +1,5 @@
 // GET /v1/reports/{winter,sulfation,replacements,overdue}: JSON, or CSV
 // with Accept: text/csv. A depot-scoped token sees its depot only.
-#include <cstdio>
 
 #include "server/api/handlers/common.hpp"
 #include "server/api/handlers/handlers.hpp"
