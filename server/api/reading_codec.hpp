@@ -15,7 +15,7 @@
 namespace pbfleet::api {
 
 // Length caps of the decoder (absurd inputs stay out of memory; the real
-// limits are validate_reading's), shared by read_reading and the SAX
+// limits are validate_reading's), shared by read_reading and the streaming
 // reader (reading_stream.hpp) so both take the same bodies.
 inline constexpr std::size_t kReadingTextCap = 4096;
 inline constexpr std::size_t kTimestampTextCap = 40;

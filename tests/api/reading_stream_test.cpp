@@ -1,12 +1,13 @@
-// The SAX reader of reading bodies (reading_stream.hpp) against the tree
+// The scanner of reading bodies (reading_stream.hpp) against the tree
 // reader it stands in for (read_reading over nlohmann's DOM): whatever the
-// SAX reader takes, it must read exactly as the tree reader does with no
+// scanner takes, it must read exactly as the tree reader does with no
 // problem; what it leaves, the tree reader words.
 #include "server/api/reading_stream.hpp"
 
 #include <doctest/doctest.h>
 
 #include <nlohmann/json.hpp>
+#include <cmath>
 #include <random>
 
 #include "server/api/json_fields.hpp"
@@ -62,7 +63,7 @@ bool same(const wire::ReadingInput& a, const wire::ReadingInput& b) {
          a.water_added == b.water_added;
 }
 
-// Agreement on one body: when the SAX reader takes it, the tree reader
+// Agreement on one body: when the scanner takes it, the tree reader
 // reads the same readings without problems.
 void check_agrees(const std::string& body) {
   const auto streamed = stream_readings(body);
@@ -106,7 +107,7 @@ json random_reading(std::mt19937& rng, int n) {
 
 }  // namespace
 
-TEST_CASE("every plain body reads through the SAX reader exactly as through the tree") {
+TEST_CASE("every plain body reads through the scanner exactly as through the tree") {
   std::mt19937 rng(20261204);
   for (int round = 0; round < 200; ++round) {
     json batch = json::array();
@@ -149,7 +150,70 @@ TEST_CASE("bodies cut or altered at random are either read as the tree reads the
   CHECK(left > 100);
 }
 
-TEST_CASE("shapes the SAX reader leaves to the tree reader") {
+TEST_CASE("the scanner reads JSON's own forms as the tree does") {
+  const std::string head = R"({"serial":"HB-1","taken_at":"2026-11-20T07:00:00Z",)";
+  // Each of these is plain JSON (RFC 8259) that the scanner must take
+  // itself, reading the same values as the tree reader.
+  for (const std::string& body : {
+           head + R"("ocv_v":1.26e1})",                      // exponent
+           head + R"("ocv_v":126E-1})",                      // capital E, negative exponent
+           head + R"("ocv_v":12.6e+0})",                     // explicit plus
+           head + R"("ambient_temp_c":-0})",                 // the integer -0
+           head + R"("ambient_temp_c":-0.0})",               // the fraction -0.0
+           head + R"("rest_h":18446744073709551617})",       // past 64-bit integers
+           head + R"("ocv_v":12.600000000000000000000001})", // more digits than a double holds
+           head + R"("cell_sg":[]})",                        // no cells given
+           " \t\r\n[ " + head + "\"cell_sg\" : [ 1.2 , 1.25 ]\n} ] \n",  // every kind of space
+           head + R"("note":"\"quoted\" \\ \/ \b\f\n\r\t"})",  // every short escape
+           head + R"("note":"\u00e6\u00C6 \u20ac \ud83d\ude97 \u0000"})",  // \u forms, a pair
+           head + "\"note\":\"\xc3\xa6 \xe2\x82\xac \xf0\x9f\x9a\x97\"}",  // UTF-8 of 2, 3, 4 bytes
+           head + R"("logged_by":"","source":null})",        // empty text; null is absent
+       }) {
+    INFO("body: " << body);
+    REQUIRE(stream_readings(body).has_value());
+    check_agrees(body);
+  }
+  const auto pair = stream_readings(head + R"("note":"\ud83d\ude97"})");
+  REQUIRE(pair.has_value());
+  CHECK(pair->readings[0].note == "\xf0\x9f\x9a\x97");
+  const auto zero = stream_readings(head + R"("ambient_temp_c":-0})");
+  REQUIRE(zero.has_value());
+  CHECK_FALSE(std::signbit(zero->readings[0].ambient->value.value));  // as nlohmann reads "-0"
+}
+
+TEST_CASE("text that is not JSON is left to the tree reader, which refuses it too") {
+  const std::string head = R"({"serial":"HB-1","taken_at":"2026-11-20T07:00:00Z",)";
+  for (const std::string& bad : {
+           head + R"("ocv_v":012})",        // leading zero
+           head + R"("ocv_v":12.})",        // no digit after the point
+           head + R"("ocv_v":.5})",         // no digit before it
+           head + R"("ocv_v":1e})",         // no exponent digits
+           head + R"("ocv_v":+12})",        // a plus sign
+           head + R"("ocv_v":1e999})",      // not a finite double
+           head + R"("ocv_v":NaN})",
+           head + R"("ocv_v":12.6,})",      // trailing comma
+           head + R"("cell_sg":[1.2,]})",
+           head + R"("note":"\x41"})",      // no such escape
+           head + R"("note":"\ud83d"})",    // a high surrogate alone
+           head + R"("note":"\ude97"})",    // a low surrogate alone
+           head + R"("note":"\u12"})",      // short \u
+           head + "\"note\":\"tab\there\"}",              // a raw control character
+           head + "\"note\":\"\xc0\xaf\"}",                // overlong UTF-8
+           head + "\"note\":\"\xed\xa0\x80\"}",            // a surrogate in UTF-8
+           head + "\"note\":\"\xf4\x90\x80\x80\"}",        // past U+10FFFF
+           head + "\"note\":\"\xe2\x82\"}",                // cut short
+           head + R"("after_charge":tru})",
+           head + R"("ocv_v":12.6} x)",     // text after the body
+           head + R"("ocv_v":12.6}})",
+           "[" + head + R"("ocv_v":12.6})",  // array not closed
+       }) {
+    INFO("body: " << bad);
+    CHECK_FALSE(stream_readings(bad).has_value());
+    CHECK_FALSE(tree_read(bad).has_value());
+  }
+}
+
+TEST_CASE("shapes the scanner leaves to the tree reader") {
   const std::string good =
       R"({"serial":"HB-1","taken_at":"2026-11-20T07:00:00Z","ocv_v":12.6,"cell_sg":[1.26,1.26]})";
   REQUIRE(stream_readings(good).has_value());

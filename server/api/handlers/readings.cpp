@@ -33,7 +33,7 @@ FieldNamer json_namer(bool batch) {
 }
 
 std::variant<Parsed, http::Response> parse_json(const Call& call) {
-  // The plain shape in one SAX pass (reading_stream.hpp); anything else
+  // The plain shape in one scanning pass (reading_stream.hpp); anything else
   // through the tree, which words the problems.
   if (media_type(call.request.header("content-type")) == "application/json") {
     if (auto streamed = stream_readings(call.request.body))
