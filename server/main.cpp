@@ -100,6 +100,7 @@ int serve(storage::Store& store, const api::Config& config, const std::string& p
   api::SystemClock clock;
   api::ApiOptions options;
   options.backup_dir = config.backup_dir;
+  options.writer.preparers = config.prepare_threads;
   api::Api app(store, clock, options);
   pbfleet::web::Dashboard dashboard(
       app.context(), {.session_lifetime = std::chrono::hours{config.session_hours},

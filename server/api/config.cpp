@@ -110,7 +110,7 @@ const std::vector<std::string>& config_keys() {
       "log_level",        "backup_dir",     "body_limit_bytes",
       "header_limit_bytes", "header_timeout_ms", "body_timeout_ms",
       "write_timeout_ms", "max_connections", "io_threads",
-      "worker_threads",   "max_db_bytes",
+      "worker_threads",   "prepare_threads",  "max_db_bytes",
       "secure_cookies",   "session_hours"};
   return kKeys;
 }
@@ -183,6 +183,8 @@ models::Result<Config> make_config(const Settings& s) {
     c.secure_cookies = it->second == "true";
   }
   if (auto r = read_number<int>(s, "session_hours", 1, 168, c.session_hours); !r) return r.error();
+  if (auto r = read_number<std::size_t>(s, "prepare_threads", 0, 256, c.prepare_threads); !r)
+    return r.error();
   return c;
 }
 

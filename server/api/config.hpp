@@ -20,6 +20,9 @@
 //   max_connections     default 512
 //   io_threads          default 2
 //   worker_threads      default 8
+//   prepare_threads     requests preparing readings at once, 0..256; 0 (the
+//                       default) = one fewer than the cores, at least 1, so
+//                       the database writer keeps a core to itself
 //   max_db_bytes        cap on the database file size, 0 = none (default);
 //                       a write that would pass it gets 507 storage-full and
 //                       stores nothing, exactly as on a full disk
@@ -49,6 +52,7 @@ struct Config {
   std::string log_level = "info";
   std::uint64_t max_db_bytes = 0;    // 0 = no cap (see storage SqliteOptions)
   http::ServerOptions server;        // limits and threads
+  std::size_t prepare_threads = 0;   // 0 = cores - 1 (see WriterOptions::preparers)
   bool secure_cookies = false;       // dashboard cookies carry Secure
   int session_hours = 12;            // dashboard session lifetime
 };

@@ -43,6 +43,19 @@ TEST_CASE("bad values name the key and the accepted form") {
   CHECK(bad_limit.error().allowed == "1 to 100000");
   auto bad_level = make_config({{"data", "/x"}, {"log_level", "loud"}});
   CHECK_FALSE(bad_level.ok());
+  auto bad_preparers = make_config({{"data", "/x"}, {"prepare_threads", "-1"}});
+  REQUIRE_FALSE(bad_preparers.ok());
+  CHECK(bad_preparers.error().field == "prepare_threads");
+  CHECK(bad_preparers.error().allowed == "0 to 256");
+}
+
+TEST_CASE("prepare_threads defaults to 0 (one fewer than the cores) and reads a count") {
+  auto c = make_config({{"data", "/x"}});
+  REQUIRE(c.ok());
+  CHECK(c->prepare_threads == 0);
+  auto three = make_config({{"data", "/x"}, {"prepare_threads", "3"}});
+  REQUIRE(three.ok());
+  CHECK(three->prepare_threads == 3);
 }
 
 TEST_CASE("listen addresses parse with IPv4, bracketed IPv6 and port 0") {

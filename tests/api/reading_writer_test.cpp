@@ -94,5 +94,41 @@ TEST_CASE("a slow acknowledgement does not hold up the next commit") {
   CHECK(stored_count(f.store()) == 2);
 }
 
+TEST_CASE("preparers: one fewer than the cores by default, at least one, or as configured") {
+  CHECK(preparers_for({}, 2) == 1);
+  CHECK(preparers_for({}, 8) == 7);
+  CHECK(preparers_for({}, 1) == 1);
+  CHECK(preparers_for({}, 0) == 1);  // hardware_concurrency() may not know
+  WriterOptions three;
+  three.preparers = 3;
+  CHECK(preparers_for(three, 2) == 3);
+}
+
+TEST_CASE("no more requests prepare at once than the writer allows") {
+  ApiFixture f;
+  WriterOptions options;
+  options.preparers = 2;
+  ReadingWriter writer(f.store(), f.clock(), options);
+  std::atomic<int> inside{0}, most{0};
+  std::vector<std::thread> requests;
+  for (int i = 0; i < 6; ++i) {
+    requests.emplace_back([&] {
+      const ReadingWriter::PrepareSlot slot(writer);
+      const int now = ++inside;
+      int seen = most.load();
+      while (now > seen && !most.compare_exchange_weak(seen, now)) {
+      }
+      // Stay until a second request is inside too (or 5 s passed), and a
+      // little longer, so a third would get in here if the gate let it.
+      const auto deadline = std::chrono::steady_clock::now() + 5s;
+      while (most < 2 && std::chrono::steady_clock::now() < deadline) std::this_thread::sleep_for(1ms);
+      std::this_thread::sleep_for(10ms);
+      --inside;
+    });
+  }
+  for (auto& t : requests) t.join();
+  CHECK(most == 2);  // two at once, never three
+}
+
 }  // namespace
 }  // namespace pbfleet::api::testing

@@ -31,7 +31,12 @@ class Connection {
     const int flags = writable ? SQLITE_OPEN_READWRITE : SQLITE_OPEN_READONLY;
     if (sqlite3_open_v2(file.c_str(), &db_, flags, nullptr) != SQLITE_OK) die(db_, "open");
     sqlite3_busy_timeout(db_, 5000);
-    if (writable) exec("PRAGMA journal_mode=WAL; PRAGMA synchronous=FULL; PRAGMA foreign_keys=ON");
+    // The writer's settings (sqlite_store.cpp), its 32 MiB page cache too:
+    // with SQLite's default 2 MiB the raw insert slowed as the table grew
+    // (110k rows/s at 400k rows against 140k at 100k), flattering the ratio.
+    if (writable)
+      exec("PRAGMA journal_mode=WAL; PRAGMA synchronous=FULL; PRAGMA foreign_keys=ON;"
+           " PRAGMA cache_size=-32768; PRAGMA temp_store=MEMORY");
   }
   ~Connection() { sqlite3_close(db_); }
   Connection(const Connection&) = delete;

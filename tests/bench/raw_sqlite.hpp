@@ -47,7 +47,8 @@ std::string serial_with_id(const std::filesystem::path& db, std::int64_t id);
 
 // Inserts `readings` with one prepared INSERT, `batch` rows per
 // transaction (BEGIN IMMEDIATE ... COMMIT), on a database the store
-// created (so schema, triggers, WAL and synchronous=FULL are the server's).
+// created (so schema, triggers, WAL, synchronous=FULL and the page cache
+// size are the server's).
 // Every serial must name an existing battery. Returns rows per second.
 double raw_insert_rate(const std::filesystem::path& db,
                        const std::vector<models::wire::ReadingInput>& readings, std::size_t batch);

@@ -194,6 +194,9 @@ Prepared prepare(std::vector<wire::ReadingInput> readings, const BatteriesBySeri
 }  // namespace
 
 void post_readings(const Call& call, http::Reply reply) {
+  // Parsing, checking and deriving take turns for a core, leaving one to
+  // the writer (reading_writer.hpp); released once the batch is queued.
+  const ReadingWriter::PrepareSlot slot(call.ctx.writer);
   auto parsed = parse_body(call);
   if (auto* refused = std::get_if<http::Response>(&parsed)) return reply(std::move(*refused));
   auto& [readings, name] = std::get<Parsed>(parsed);

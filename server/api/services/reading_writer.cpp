@@ -1,18 +1,23 @@
 #include "server/api/services/reading_writer.hpp"
 
+#include <algorithm>
 #include <exception>
 #include <utility>
 
 #include "server/http/thread_name.hpp"
 
-#include "server/http/thread_name.hpp"
-
 namespace pbfleet::api {
+
+std::size_t preparers_for(const WriterOptions& options, unsigned cores) {
+  const std::size_t wanted = options.preparers != 0 ? options.preparers : (cores > 1 ? cores - 1 : 1);
+  return std::min<std::size_t>(wanted, 1024);
+}
 
 ReadingWriter::ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options)
     : store_(store),
       clock_(clock),
       options_(options),
+      preparing_(static_cast<std::ptrdiff_t>(preparers_for(options, std::thread::hardware_concurrency()))),
       acknowledger_([this] {
         http::name_this_thread("reading-acks");
         acknowledge();

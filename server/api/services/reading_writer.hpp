@@ -9,6 +9,13 @@
 // Acknowledging (rendering each answer) runs on a second thread, so the
 // writer starts the next transaction while the last one's answers are
 // written: the writer thread does nothing but store.
+//
+// Requests prepare their readings (parse, check, derive, hash) on the
+// server's worker threads, but at most `preparers` at once (PrepareSlot):
+// the writer is the one step that cannot run in parallel, so it should not
+// queue for a core behind a crowd of preparing workers. With 8 workers
+// preparing 500-reading bodies on 2 cores, the writer was runnable but not
+// running for about a fifth of its time (figures in DEVELOPERS.md).
 #pragma once
 
 #include <condition_variable>
@@ -16,6 +23,7 @@
 #include <deque>
 #include <functional>
 #include <mutex>
+#include <semaphore>
 #include <thread>
 #include <vector>
 
@@ -29,7 +37,13 @@ struct WriterOptions {
   std::size_t max_batches_per_commit = 1024;
   // Batches waiting at most; beyond it submit() refuses (the caller answers 503).
   std::size_t max_pending = 16 * 1024;
+  // Requests preparing readings at once; 0 = one fewer than the cores
+  // (at least 1), leaving a core to the writer.
+  std::size_t preparers = 0;
 };
+
+// The number of preparers `options` asks for on a machine with `cores`.
+std::size_t preparers_for(const WriterOptions& options, unsigned cores);
 
 class ReadingWriter {
  public:
@@ -45,6 +59,19 @@ class ReadingWriter {
   ~ReadingWriter();
   ReadingWriter(const ReadingWriter&) = delete;
   ReadingWriter& operator=(const ReadingWriter&) = delete;
+
+  // Held while a request prepares readings for submit(); waits while
+  // `preparers` others hold one.
+  class PrepareSlot {
+   public:
+    explicit PrepareSlot(ReadingWriter& writer) : writer_(writer) { writer_.preparing_.acquire(); }
+    ~PrepareSlot() { writer_.preparing_.release(); }
+    PrepareSlot(const PrepareSlot&) = delete;
+    PrepareSlot& operator=(const PrepareSlot&) = delete;
+
+   private:
+    ReadingWriter& writer_;
+  };
 
   // Queues a batch. False (and `done` not called) when the queue is full
   // or the writer stopped. REQUIRES: each reading passed validate_reading.
@@ -78,6 +105,8 @@ class ReadingWriter {
   std::condition_variable ack_wake_;
   std::deque<Acknowledgement> acks_;
   bool writer_done_ = false;  // the writer has handed over its last group
+
+  std::counting_semaphore<1024> preparing_;
 
   // Last: they start after the members above exist. The acknowledger is
   // declared first so that it is still running while the writer drains.
