@@ -194,10 +194,12 @@ Prepared prepare(std::vector<wire::ReadingInput> readings, const BatteriesBySeri
 }  // namespace
 
 void post_readings(const Call& call, http::Reply reply) {
-  // Parsing, checking and deriving take turns for a core, leaving one to
-  // the writer (reading_writer.hpp); released once the batch is queued.
-  const ReadingWriter::PrepareSlot slot(call.ctx.writer);
+  // Parsing and deriving take turns for a core, leaving one to the writer
+  // (reading_writer.hpp). Not held across check_batch, which may wait on
+  // the database (PostgreSQL): that would queue the requests' round trips.
+  std::optional<ReadingWriter::PrepareSlot> slot(std::in_place, call.ctx.writer);
   auto parsed = parse_body(call);
+  slot.reset();
   if (auto* refused = std::get_if<http::Response>(&parsed)) return reply(std::move(*refused));
   auto& [readings, name] = std::get<Parsed>(parsed);
   if (readings.empty())
@@ -211,7 +213,9 @@ void post_readings(const Call& call, http::Reply reply) {
                          std::to_string(checked.problems.size()) +
                              " field(s) invalid; nothing was stored",
                          checked.problems));
+  slot.emplace(call.ctx.writer);
   Prepared prepared = prepare(std::move(readings), checked.batteries);
+  slot.reset();
   Metrics& metrics = call.ctx.metrics;
   const bool minimal = prefers(call.request.header("prefer"), "return=minimal");
   auto done = [reply, name = name, derived = std::move(prepared.derived), &metrics,
