@@ -5,6 +5,9 @@
 #include <fcntl.h>
 #include <unistd.h>
 
+#include <cerrno>
+#include <cstring>
+
 #include <optional>
 #include <ostream>
 
@@ -27,15 +30,51 @@ struct TokenAddFlags {
   std::string save_to;
 };
 
-bool write_secret(const std::string& path, const std::string& token) {
-  int fd = ::open(path.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, kSecretFileMode);
-  if (fd < 0) return false;
-  auto line = token + "\n";
-  bool ok = ::write(fd, line.data(), line.size()) == static_cast<ssize_t>(line.size());
-  return ::close(fd) == 0 && ok;
-}
+// The file --save-to names, created (mode 0600, never over an existing
+// file) before the server is asked for a token, so a path that cannot be
+// written costs no token. Removed again unless a token was written to it.
+class SecretFile {
+ public:
+  explicit SecretFile(std::string path)
+      : path_(std::move(path)),
+        fd_(::open(path_.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, kSecretFileMode)),
+        error_(fd_ < 0 ? std::strerror(errno) : "") {}
+  ~SecretFile() {
+    if (fd_ < 0) return;
+    ::close(fd_);
+    if (!kept_) ::unlink(path_.c_str());
+  }
+  SecretFile(const SecretFile&) = delete;
+  SecretFile& operator=(const SecretFile&) = delete;
+
+  [[nodiscard]] bool is_open() const { return fd_ >= 0; }
+  [[nodiscard]] const std::string& error() const { return error_; }
+  // Writes the token and keeps the file; false when the write failed.
+  bool keep(const std::string& token) {
+    const auto line = token + "\n";
+    const bool written = ::write(fd_, line.data(), line.size()) == static_cast<ssize_t>(line.size());
+    const bool closed = ::close(fd_) == 0;
+    fd_ = -1;
+    kept_ = written && closed;
+    if (!kept_) ::unlink(path_.c_str());
+    return kept_;
+  }
+
+ private:
+  std::string path_;
+  int fd_;
+  std::string error_;
+  bool kept_ = false;
+};
 
 int run_add(const TokenAddFlags& f, Context& ctx) {
+  std::optional<SecretFile> file;
+  if (!f.save_to.empty()) {
+    file.emplace(f.save_to);
+    if (!file->is_open())
+      return ctx.fail(kExitFailure, "--save-to " + f.save_to + ": " + file->error() +
+                                        " (it must be a new file); no token was created");
+  }
   int code = kExitOk;
   auto api = api_or_fail(ctx, code);
   if (!api) return code;
@@ -46,10 +85,10 @@ int run_add(const TokenAddFlags& f, Context& ctx) {
   if (!reply.ok) return ctx.fail(reply);
   auto token = reply.json.value("token", std::string());
   auto id = reply.json.contains("id") ? reply.json["id"].dump() : "?";
-  if (!f.save_to.empty()) {
-    if (!write_secret(f.save_to, token)) {
+  if (file) {
+    if (!file->keep(token)) {
       return ctx.fail(kExitFailure, "token " + id + " was created but could not be written to " + f.save_to +
-                                        " (exists already?); revoke it with `pbfleet token revoke " + id + "`");
+                                        "; revoke it with `pbfleet token revoke " + id + "`");
     }
     ctx.err() << "token " << id << " saved to " << f.save_to << " (readable by you only)\n";
     return kExitOk;

@@ -1,6 +1,10 @@
 // depot, vehicle, battery and token commands: the requests they make and
 // what they print.
 #include <doctest/doctest.h>
+#include <unistd.h>
+
+#include <filesystem>
+#include <fstream>
 
 #include "cli/commands/context.hpp"
 #include "tests/cli/fake_server.hpp"
@@ -92,6 +96,41 @@ TEST_CASE("a new token is printed once on stdout, with its note on stderr") {
   CHECK(term.out.str() == "tok-abc\n");
   CHECK(term.err.str().find("shown once") != std::string::npos);
   CHECK(term.run({"token", "add", "x", "--role", "wizard"}, seams(server)) == kExitUsage);
+}
+
+TEST_CASE("token add --save-to writes a new 0600 file, and asks for no token when it cannot") {
+  testing::FakeServer server([](const HttpRequest&) {
+    return testing::json_response(201, R"({"id":7,"token":"tok-saved"})");
+  });
+  const auto dir = std::filesystem::temp_directory_path() /
+                   ("pbfleet-save-to-" + std::to_string(::getpid()));
+  std::filesystem::remove_all(dir);
+  std::filesystem::create_directories(dir);
+  const auto file = dir / "crew.token";
+  testing::Terminal term;
+  REQUIRE(term.run({"token", "add", "Quay crew", "--role", "crew", "--save-to", file.string()}, seams(server)) == 0);
+  std::ifstream in(file);
+  std::string saved;
+  std::getline(in, saved);
+  CHECK(saved == "tok-saved");
+  CHECK((std::filesystem::status(file).permissions() & std::filesystem::perms::all) ==
+        (std::filesystem::perms::owner_read | std::filesystem::perms::owner_write));
+  CHECK(term.out.str().find("tok-saved") == std::string::npos);  // not on the screen
+  // The file exists now: refused before the server is asked, so no token
+  // is left behind to revoke.
+  testing::Terminal again;
+  CHECK(again.run({"token", "add", "Quay crew", "--role", "crew", "--save-to", file.string()}, seams(server)) != 0);
+  CHECK(again.err.str().find("no token was created") != std::string::npos);
+  CHECK(server.requests.size() == 1);
+  // A refused request leaves no empty file behind.
+  testing::FakeServer refusing([](const HttpRequest&) {
+    return testing::json_response(403, R"({"title":"forbidden","status":403})");
+  });
+  const auto other = dir / "other.token";
+  testing::Terminal refused;
+  CHECK(refused.run({"token", "add", "x", "--role", "crew", "--save-to", other.string()}, seams(refusing)) != 0);
+  CHECK_FALSE(std::filesystem::exists(other));
+  std::filesystem::remove_all(dir);
 }
 
 TEST_CASE("token add --expires-in sends expires_in_days and refuses a lifetime outside 1..3650") {
