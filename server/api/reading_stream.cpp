@@ -76,16 +76,9 @@ class Scanner {
       if (p_ != end_ && *p_ == ']') {
         ++p_;
       } else {
-        for (;;) {
+        for (bool closed = false; !closed;) {
           skip_space();
-          if (!read_reading(out.readings.emplace_back())) return false;
-          skip_space();
-          if (p_ == end_) return false;
-          if (*p_ == ']') {
-            ++p_;
-            break;
-          }
-          if (*p_++ != ',') return false;
+          if (!read_reading(out.readings.emplace_back()) || !after_item(']', closed)) return false;
         }
       }
     } else {
@@ -99,6 +92,16 @@ class Scanner {
  private:
   void skip_space() {
     while (p_ != end_ && (*p_ == ' ' || *p_ == '\n' || *p_ == '\r' || *p_ == '\t')) ++p_;
+  }
+
+  // After an item of an array or object: a comma (true), the closing
+  // bracket (true, `closed` set) or anything else (false).
+  bool after_item(char close, bool& closed) {
+    skip_space();
+    if (p_ == end_) return false;
+    const char c = *p_++;
+    closed = c == close;
+    return closed || c == ',';
   }
 
   bool literal(std::string_view word) {
@@ -136,13 +139,9 @@ class Scanner {
           if (!read_value(*f, r)) return false;
           have |= bit(*f);
         }
-        skip_space();
-        if (p_ == end_) return false;
-        if (*p_ == '}') {
-          ++p_;
-          break;
-        }
-        if (*p_++ != ',') return false;
+        bool closed = false;
+        if (!after_item('}', closed)) return false;
+        if (closed) break;
       }
     }
     if (!(have & bit(Field::taken_at)) || r.serial.empty()) return false;
@@ -207,19 +206,14 @@ class Scanner {
       ++p_;
       return true;
     }
-    for (;;) {
+    for (bool closed = false; !closed;) {
       skip_space();
       double v = 0;
       if (!read_number(v)) return false;
       r.cell_sg.push_back(models::SpecificGravity{v});
-      skip_space();
-      if (p_ == end_) return false;
-      if (*p_ == ']') {
-        ++p_;
-        return true;
-      }
-      if (*p_++ != ',') return false;
+      if (!after_item(']', closed)) return false;
     }
+    return true;
   }
 
   // A JSON number (RFC 8259 section 6), finite, to the nearest double.
