@@ -32,6 +32,13 @@ std::optional<Field> field_named(std::string_view key) {
   return std::nullopt;
 }
 
+// No key of a reading is longer: a longer key is not one of them.
+constexpr std::size_t kLongestName = [] {
+  std::size_t most = 0;
+  for (const auto name : kNames) most = name.size() > most ? name.size() : most;
+  return most;
+}();
+
 constexpr std::uint32_t bit(Field f) { return 1u << static_cast<unsigned>(f); }
 
 int hex_digit(char c) {
@@ -124,8 +131,7 @@ class Scanner {
     } else {
       for (;;) {
         skip_space();
-        if (!read_string(key_, kNames[static_cast<std::size_t>(Field::electrolyte_temp_c)].size()))
-          return false;
+        if (!read_string(key_, kLongestName)) return false;
         const auto f = field_named(key_);
         if (!f || (seen & bit(*f))) return false;  // unknown or repeated
         seen |= bit(*f);
@@ -216,31 +222,34 @@ class Scanner {
     return true;
   }
 
+  // Past a run of decimal digits; false when there was none.
+  bool skip_digits() {
+    const char* start = p_;
+    while (p_ != end_ && *p_ >= '0' && *p_ <= '9') ++p_;
+    return p_ != start;
+  }
+
   // A JSON number (RFC 8259 section 6), finite, to the nearest double.
   bool read_number(double& out) {
     const char* start = p_;
     if (p_ != end_ && *p_ == '-') ++p_;
     if (p_ == end_) return false;
     if (*p_ == '0') {
-      ++p_;
-    } else if (*p_ >= '1' && *p_ <= '9') {
-      while (p_ != end_ && *p_ >= '0' && *p_ <= '9') ++p_;
-    } else {
+      ++p_;  // no digits may follow a leading zero
+    } else if (!skip_digits()) {
       return false;
     }
     bool integer = true;
     if (p_ != end_ && *p_ == '.') {
       integer = false;
       ++p_;
-      if (p_ == end_ || *p_ < '0' || *p_ > '9') return false;
-      while (p_ != end_ && *p_ >= '0' && *p_ <= '9') ++p_;
+      if (!skip_digits()) return false;
     }
     if (p_ != end_ && (*p_ == 'e' || *p_ == 'E')) {
       integer = false;
       ++p_;
       if (p_ != end_ && (*p_ == '+' || *p_ == '-')) ++p_;
-      if (p_ == end_ || *p_ < '0' || *p_ > '9') return false;
-      while (p_ != end_ && *p_ >= '0' && *p_ <= '9') ++p_;
+      if (!skip_digits()) return false;
     }
     const auto [at, ec] = std::from_chars(start, p_, out);
     if (ec != std::errc{} || at != p_ || !std::isfinite(out)) return false;

@@ -10,7 +10,7 @@ namespace pbfleet::api {
 
 std::size_t preparers_for(const WriterOptions& options, unsigned cores) {
   const std::size_t wanted = options.preparers != 0 ? options.preparers : (cores > 1 ? cores - 1 : 1);
-  return std::min<std::size_t>(wanted, 1024);
+  return std::min(wanted, kMaxPreparers);
 }
 
 ReadingWriter::ReadingWriter(storage::Store& store, const Clock& clock, WriterOptions options)

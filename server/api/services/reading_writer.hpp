@@ -10,8 +10,9 @@
 // writer starts the next transaction while the last one's answers are
 // written: the writer thread does nothing but store.
 //
-// Requests prepare their readings (parse, check, derive, hash) on the
-// server's worker threads, but at most `preparers` at once (PrepareSlot):
+// Requests prepare their readings (parse, derive, hash) on the server's
+// worker threads, but at most `preparers` at once (PrepareSlot; not held
+// while a request waits on the database):
 // the writer is the one step that cannot run in parallel, so it should not
 // queue for a core behind a crowd of preparing workers. With 8 workers
 // preparing 500-reading bodies on 2 cores, the writer was runnable but not
@@ -31,6 +32,9 @@
 #include "server/storage/store.hpp"
 
 namespace pbfleet::api {
+
+// The most requests that may prepare at once, whatever is configured.
+inline constexpr std::size_t kMaxPreparers = 1024;
 
 struct WriterOptions {
   // Batches stored in one transaction at most; bounds one commit's latency.
@@ -106,7 +110,7 @@ class ReadingWriter {
   std::deque<Acknowledgement> acks_;
   bool writer_done_ = false;  // the writer has handed over its last group
 
-  std::counting_semaphore<1024> preparing_;
+  std::counting_semaphore<kMaxPreparers> preparing_;
 
   // Last: they start after the members above exist. The acknowledger is
   // declared first so that it is still running while the writer drains.
