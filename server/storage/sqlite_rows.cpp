@@ -1,10 +1,10 @@
 #include "server/storage/sqlite_rows.hpp"
 
-#include <openssl/evp.h>
-
 #include <algorithm>
 #include <charconv>
 #include <cstring>
+
+#include "server/storage/digest.hpp"
 
 namespace pbfleet::storage::sqlite {
 namespace {
@@ -24,33 +24,46 @@ std::optional<Quantity> read_quantity(const Statement& s, int column) {
   return Quantity{s.real_at(column)};
 }
 
-std::string shortest(double value) {
-  char buffer[32];
-  const auto result = std::to_chars(buffer, buffer + sizeof buffer, value);
-  return std::string(buffer, result.ptr);
-}
+// The shortest round-trip decimal of a double, in a buffer on the stack
+// (this runs for every number of every reading stored).
+class Shortest {
+ public:
+  explicit Shortest(double value) : end_(std::to_chars(chars_, chars_ + sizeof chars_, value).ptr) {}
+  [[nodiscard]] std::string_view view() const { return {chars_, static_cast<std::size_t>(end_ - chars_)}; }
+
+ private:
+  char chars_[32];
+  char* end_;
+};
 
 // Canonical form for hashing: each part length-prefixed, so no choice of
 // text can make two different readings serialise alike.
 class Canonical {
  public:
-  void add(std::string_view part) {
-    out_ += std::to_string(part.size());
-    out_ += ':';
-    out_ += part;
-  }
-  void add(double value) { add(shortest(value)); }
+  Canonical() { out_.reserve(256); }
+  void add(std::string_view part) { add(part, {}); }
+  void add(double value) { add(Shortest(value).view()); }
   template <class Q>
   void add(const std::optional<Q>& q) {
-    q ? add(shortest(q->value)) : add(std::string_view("-"));
+    q ? add(Shortest(q->value).view()) : add(std::string_view("-"));
   }
   void add(const std::optional<EnteredTemperature>& t) {
-    t ? add(shortest(t->value.value) + (t->unit == TempUnit::f ? "F" : "C"))
+    t ? add(Shortest(t->value.value).view(), t->unit == TempUnit::f ? "F" : "C")
       : add(std::string_view("-"));
   }
   const std::string& text() const { return out_; }
 
  private:
+  // One part written as "<length>:<part><suffix>", the length counting both.
+  void add(std::string_view part, std::string_view suffix) {
+    char length[24];
+    const auto end = std::to_chars(length, length + sizeof length, part.size() + suffix.size()).ptr;
+    out_.append(length, end);
+    out_ += ':';
+    out_.append(part);
+    out_.append(suffix);
+  }
+
   std::string out_;
 };
 
@@ -146,9 +159,10 @@ ApiToken read_token(const Statement& s, int first) {
 
 std::string encode_cell_sg(const std::vector<models::SpecificGravity>& cells) {
   std::string out;
+  out.reserve(cells.size() * 7);  // "1.265;" and the like
   for (const auto& sg : cells) {
     if (!out.empty()) out += ';';
-    out += shortest(sg.value);
+    out.append(Shortest(sg.value).view());
   }
   return out;
 }
@@ -183,10 +197,11 @@ ContentHash content_hash(const models::wire::ReadingInput& r) {
 
 ContentHash content_hash(const models::wire::ReadingInput& r, std::string_view cell_sg_text) {
   using sqlite::Canonical;
-  using sqlite::fail;
   Canonical c;
   c.add(r.serial);
-  c.add(std::to_string(r.taken_at.time_since_epoch().count()));
+  char taken_at[24];
+  c.add(std::string_view(taken_at, std::to_chars(taken_at, taken_at + sizeof taken_at,
+                                                  r.taken_at.time_since_epoch().count()).ptr));
   c.add(r.ocv);
   c.add(cell_sg_text);
   c.add(r.electrolyte);
@@ -199,13 +214,9 @@ ContentHash content_hash(const models::wire::ReadingInput& r, std::string_view c
   c.add(r.note);
   c.add(std::string_view(r.after_charge ? "1" : "0"));
   c.add(std::string_view(r.water_added ? "1" : "0"));
-  unsigned char digest[EVP_MAX_MD_SIZE];
-  unsigned int size = 0;
-  if (EVP_Digest(c.text().data(), c.text().size(), digest, &size, EVP_sha256(), nullptr) != 1) {
-    fail(StoreErrc::internal, "SHA-256 failed");
-  }
+  const Sha256 digest = sha256(c.text());
   ContentHash out{};
-  std::memcpy(out.data(), digest, out.size());
+  std::memcpy(out.data(), digest.data(), out.size());
   return out;
 }
 

@@ -1,11 +1,12 @@
 #include "server/storage/tokens.hpp"
 
 #include <openssl/crypto.h>
-#include <openssl/evp.h>
 #include <openssl/rand.h>
 
 #include <array>
 #include <stdexcept>
+
+#include "server/storage/digest.hpp"
 
 namespace pbfleet::storage {
 
@@ -33,15 +34,7 @@ std::string new_raw_token() { return random_hex(kTokenBytes); }
 
 std::string new_reading_id() { return "srv-" + random_hex(12); }
 
-TokenHash hash_token(std::string_view raw) {
-  TokenHash hash;
-  unsigned int size = 0;
-  if (EVP_Digest(raw.data(), raw.size(), hash.bytes.data(), &size, EVP_sha256(), nullptr) != 1 ||
-      size != hash.bytes.size()) {
-    throw std::runtime_error("SHA-256 failed");
-  }
-  return hash;
-}
+TokenHash hash_token(std::string_view raw) { return TokenHash{sha256(raw)}; }
 
 bool same_token_hash(const TokenHash& a, const TokenHash& b) {
   return CRYPTO_memcmp(a.bytes.data(), b.bytes.data(), a.bytes.size()) == 0;
