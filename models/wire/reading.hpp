@@ -4,10 +4,12 @@
 // rules exist once. Pure: the current time is passed in.
 #pragma once
 
+#include <array>
 #include <chrono>
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "models/result.hpp"
@@ -104,5 +106,13 @@ Result<EnteredTemperature> parse_temperature(std::string_view text, std::string_
 Result<std::chrono::sys_seconds> parse_timestamp(std::string_view text, std::string_view field);
 // UTC -> "2026-11-30T07:15:00Z".
 std::string format_timestamp(std::chrono::sys_seconds t);
+// The same text in a fixed buffer, for answers that write two timestamps
+// per reading for hundreds of readings (no heap allocation).
+struct TimestampText {
+  std::array<char, 32> chars{};
+  std::size_t size = 0;
+  [[nodiscard]] std::string_view view() const { return {chars.data(), size}; }
+};
+TimestampText timestamp_text(std::chrono::sys_seconds t);
 
 }  // namespace pbfleet::models::wire

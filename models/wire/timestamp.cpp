@@ -5,6 +5,7 @@
 // 'T' and 'Z' may be lower case (RFC 3339 5.6 note). Fractional seconds are
 // accepted and truncated to whole seconds. Leap seconds (":60") are refused:
 // sys_seconds cannot hold them. "-00:00" (offset unknown) is read as UTC.
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <optional>
@@ -114,17 +115,20 @@ Result<sys_seconds> parse_timestamp(std::string_view text, std::string_view fiel
   return sys_seconds{local - minutes{f.offset_minutes}};
 }
 
-std::string format_timestamp(sys_seconds t) {
+TimestampText timestamp_text(sys_seconds t) {
   const auto day_start = floor<days>(t);
   const year_month_day date{day_start};
   const hh_mm_ss time{t - day_start};
   const int year = static_cast<int>(date.year());
+  TimestampText out;
   if (year >= 0 && year <= 9999) {
     // The common case by hand: this runs for every reading in every answer.
-    std::string out = "0000-00-00T00:00:00Z";
+    constexpr std::string_view kShape = "0000-00-00T00:00:00Z";
+    std::copy(kShape.begin(), kShape.end(), out.chars.begin());
+    out.size = kShape.size();
     const auto put = [&out](std::size_t at, unsigned value, std::size_t digits) {
       for (std::size_t i = 0; i < digits; ++i, value /= 10)
-        out[at + digits - 1 - i] = static_cast<char>('0' + value % 10);
+        out.chars[at + digits - 1 - i] = static_cast<char>('0' + value % 10);
     };
     put(0, static_cast<unsigned>(year), 4);
     put(5, static_cast<unsigned>(date.month()), 2);
@@ -134,12 +138,16 @@ std::string format_timestamp(sys_seconds t) {
     put(17, static_cast<unsigned>(time.seconds().count()), 2);
     return out;
   }
-  char buf[48];
-  std::snprintf(buf, sizeof buf, "%04d-%02u-%02uT%02d:%02d:%02dZ", static_cast<int>(date.year()),
-                static_cast<unsigned>(date.month()), static_cast<unsigned>(date.day()),
-                static_cast<int>(time.hours().count()), static_cast<int>(time.minutes().count()),
-                static_cast<int>(time.seconds().count()));
-  return buf;
+  const int n = std::snprintf(out.chars.data(), out.chars.size(), "%04d-%02u-%02uT%02d:%02d:%02dZ",
+                              year, static_cast<unsigned>(date.month()),
+                              static_cast<unsigned>(date.day()),
+                              static_cast<int>(time.hours().count()),
+                              static_cast<int>(time.minutes().count()),
+                              static_cast<int>(time.seconds().count()));
+  out.size = std::min(out.chars.size() - 1, static_cast<std::size_t>(n > 0 ? n : 0));
+  return out;
 }
+
+std::string format_timestamp(sys_seconds t) { return std::string(timestamp_text(t).view()); }
 
 }  // namespace pbfleet::models::wire

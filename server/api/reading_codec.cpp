@@ -108,7 +108,7 @@ std::optional<std::string_view> unit_text(const std::optional<wire::EnteredTempe
 void write_reading_members(JsonText& out, const wire::ReadingInput& r) {
   out.member("reading_id", r.reading_id)
       .member("serial", r.serial)
-      .member("taken_at", wire::format_timestamp(r.taken_at))
+      .member("taken_at", wire::timestamp_text(r.taken_at).view())
       .member("ocv_v", raw_value(r.ocv))
       .key("cell_sg")
       .begin_array();
@@ -130,7 +130,7 @@ void write_reading_members(JsonText& out, const wire::ReadingInput& r) {
 
 void write_reading_members(JsonText& out, const storage::StoredReading& r) {
   write_reading_members(out, static_cast<const wire::ReadingInput&>(r));
-  out.member("received_at", wire::format_timestamp(r.received_at));
+  out.member("received_at", wire::timestamp_text(r.received_at).view());
 }
 
 void write_derived(JsonText& out, const analytics::DerivedReading& d) {

@@ -65,7 +65,7 @@ void write_risk(JsonText& w, const analytics::WinterRisk& r) {
   w.key("depot_name").value(r.depot_name).key("vehicle_code").value(r.vehicle_code);
   w.key("level").value(analytics::to_string(r.level)).key("low_c").value(r.low_c);
   w.key("reading_at");
-  r.reading_at ? w.value(wire::format_timestamp(*r.reading_at)) : w.null();
+  r.reading_at ? w.value(wire::timestamp_text(*r.reading_at).view()) : w.null();
   w.key("data_age_days").value(r.data_age_days);
   w.key("soc_at_reading_percent").value(r.soc_at_reading_percent);
   w.key("projected_soc_percent").value(r.projected_soc_percent);
@@ -199,7 +199,7 @@ std::string overdue_json(const std::vector<analytics::DepotOverdue>& report, int
       w.key("depot_id").value(d.depot_id).key("depot_name").value(d.depot_name);
       w.key("serial").value(b.serial).key("vehicle_code").value(b.vehicle_code);
       w.key("last_reading");
-      b.last_reading ? w.value(wire::format_timestamp(*b.last_reading)) : w.null();
+      b.last_reading ? w.value(wire::timestamp_text(*b.last_reading).view()) : w.null();
       w.key("days_overdue_basis").value(b.days_overdue_basis).key("never_read").value(b.never_read);
       w.end_object();
     }

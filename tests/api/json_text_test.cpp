@@ -3,7 +3,10 @@
 // same document once parsed.
 #include <doctest/doctest.h>
 
+#include <charconv>
 #include <cmath>
+#include <random>
+#include <vector>
 #include <limits>
 #include <nlohmann/json.hpp>
 
@@ -66,6 +69,41 @@ TEST_CASE("numbers read back equal, whole doubles stay doubles, non-finite is nu
     std::string text;
     append_json_number(text, d);
     CHECK(text == "null");
+  }
+}
+
+// What append_json_number wrote before its quick path: std::to_chars'
+// shortest form, ".0" on whole numbers.
+std::string general_form(double d) {
+  if (!std::isfinite(d)) return "null";
+  char buf[32];
+  const auto end = std::to_chars(buf, buf + sizeof buf, d).ptr;
+  std::string text(buf, end);
+  if (text.find_first_of(".e") == std::string::npos) text += ".0";
+  return text;
+}
+
+TEST_CASE("numbers with a few decimals are written exactly as the general form writes them") {
+  std::vector<double> values = {0.001, -0.001, 0.00099999, 0.0001, 0.0012, 0.01, 0.5, 1.0, 10000.0,
+                                99999.0, 99999.999999, 99999.9999999, 100000.0, 100000.5, 1e5 - 1e-6,
+                                123456.0, 1.2730000000000001, 0.30000000000000004, 1.265, -40.545,
+                                12.780000000000001, 74.37, 3.1, 0.006, 0.005999999999999783};
+  std::mt19937_64 random(20261204);
+  for (int decimals = 0; decimals <= 8; ++decimals) {
+    const double scale = std::pow(10.0, decimals);
+    for (int i = 0; i < 2000; ++i) {
+      const auto k = static_cast<double>(random() % 200'000'000) - 1e8;
+      values.push_back(k / scale);                    // the text "k e-decimals" as read
+      values.push_back(std::round(k / 1e3) / scale);  // fewer digits
+    }
+  }
+  std::uniform_real_distribution<double> any(-2e5, 2e5);
+  for (int i = 0; i < 20000; ++i) values.push_back(any(random));
+  for (double d : values) {
+    std::string out;
+    append_json_number(out, d);
+    CAPTURE(d);
+    CHECK(out == general_form(d));
   }
 }
 
