@@ -7,6 +7,7 @@
 #include "cli/commands/context.hpp"
 #include "cli/commands/render.hpp"
 #include "cli/commands/table.hpp"
+#include "models/wire/precision.hpp"
 #include "models/wire/reading.hpp"
 
 namespace pbfleet::cli {
@@ -15,10 +16,10 @@ namespace {
 using client::Json;
 using models::Error;
 
-// Decimal places in JSON: well below each quantity's measurement resolution.
-constexpr int kSgDecimals = 4;
-constexpr int kVoltDecimals = 4;
-constexpr int kOtherDecimals = 3;
+using models::wire::kSgDecimals;
+using models::wire::kVoltDecimals;
+using models::wire::rounded;
+constexpr int kOtherDecimals = models::wire::kDerivedDecimals;
 
 constexpr std::array<std::pair<std::string_view, std::string_view>, 19> kFieldFlags = {{
     {"electrolyte_temp_f", "--temp"}, {"ambient_temp_c", "--ambient"}, {"ambient_temp_f", "--ambient"},
@@ -29,11 +30,6 @@ constexpr std::array<std::pair<std::string_view, std::string_view>, 19> kFieldFl
     {"rest_h", "--rest-hours"},       {"rated_cca_a", "--rated-cca"}, {"low_c", "--low"},
     {"required_cca_a", "--required-cca"}, {"engine", "--engine"}, {"displacement_l", "--displacement-l"},
 }};
-
-double rounded(double x, int decimals) {
-  const double scale = std::pow(10.0, decimals);
-  return std::round(x * scale) / scale;
-}
 
 Json number_or_null(const std::optional<double>& x, int decimals) {
   return x ? Json(rounded(*x, decimals)) : Json();

@@ -2,6 +2,8 @@
 
 #include <limits>
 
+#include "models/wire/precision.hpp"
+
 namespace pbfleet::api {
 
 using nlohmann::json;
@@ -134,20 +136,27 @@ void write_reading_members(JsonText& out, const storage::StoredReading& r) {
 }
 
 void write_derived(JsonText& out, const analytics::DerivedReading& d) {
+  using wire::kDerivedDecimals;
+  using wire::kSgDecimals;
+  using wire::kVoltDecimals;
+  using wire::rounded;
   out.begin_object()
-      .member("electrolyte_c", d.electrolyte_c)
-      .member("corrected_sg", d.corrected_sg)
-      .member("corrected_cell_sg", d.corrected_cell_sg)
-      .member("soc_from_sg_percent", d.soc_from_sg_percent)
-      .member("soc_from_ocv_percent", d.soc_from_ocv_percent)
+      .member("electrolyte_c", rounded(d.electrolyte_c, kDerivedDecimals))
+      .member("corrected_sg", rounded(d.corrected_sg, kSgDecimals))
+      .key("corrected_cell_sg")
+      .begin_array();
+  for (const double sg : d.corrected_cell_sg) out.value(rounded(sg, kSgDecimals));
+  out.end_array()
+      .member("soc_from_sg_percent", rounded(d.soc_from_sg_percent, kDerivedDecimals))
+      .member("soc_from_ocv_percent", rounded(d.soc_from_ocv_percent, kDerivedDecimals))
       .member("ocv_settled", d.ocv_settled)
-      .member("soc_percent", d.soc_percent)
-      .member("soc_uncertainty_percent", d.soc_uncertainty_percent)
-      .member("sg_equivalent", d.sg_equivalent)
-      .member("freezing_point_c", d.freezing_point_c)
-      .member("cell_spread", d.cell_spread)
+      .member("soc_percent", rounded(d.soc_percent, kDerivedDecimals))
+      .member("soc_uncertainty_percent", rounded(d.soc_uncertainty_percent, kDerivedDecimals))
+      .member("sg_equivalent", rounded(d.sg_equivalent, kSgDecimals))
+      .member("freezing_point_c", rounded(d.freezing_point_c, kDerivedDecimals))
+      .member("cell_spread", rounded(d.cell_spread, kSgDecimals))
       .member("weak_cell", d.weak_cell)
-      .member("load_test_min_v", d.load_test_min_v)
+      .member("load_test_min_v", rounded(d.load_test_min_v, kVoltDecimals))
       .member("trusted", d.trusted)
       .key("flags")
       .begin_array();

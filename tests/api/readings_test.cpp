@@ -4,6 +4,7 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <cmath>
 
 #include "server/api/request_util.hpp"
 #include "tests/api/fixture.hpp"
@@ -42,6 +43,39 @@ TEST_CASE("one good reading is stored and answered 201 with derived values") {
   CHECK(reading["derived"]["soc_percent"].is_number());
   CHECK(reading["derived"]["flags"].is_array());
   CHECK(stored_count(f) == 1);
+}
+
+TEST_CASE("derived values are published with the stated decimals, measurements as entered") {
+  ApiFixture f;
+  json reading = good_reading("NY-0001", "r-round");
+  reading["electrolyte_temp_c"] = -3.7;  // the SG correction gives long fractions
+  reading["cell_sg"] = json({1.241, 1.262, 1.258, 1.249, 1.255, 1.263});
+  reading["ocv_v"] = 12.437;
+  auto r = f.post("/v1/readings", reading, "crew");
+  REQUIRE(r.status == 201);
+  const auto stored = body_of(r)["readings"][0];
+  const json& d = stored["derived"];
+  // Whole multiples of 10^-decimals, as the Derived schema states.
+  const auto has_decimals = [](const json& v, int decimals) {
+    const double scaled = v.get<double>() * std::pow(10.0, decimals);
+    return std::fabs(scaled - std::round(scaled)) < 1e-6;
+  };
+  for (const char* key : {"corrected_sg", "sg_equivalent", "cell_spread"}) {
+    CAPTURE(key);
+    REQUIRE(d[key].is_number());
+    CHECK(has_decimals(d[key], 4));
+  }
+  for (const auto& cell : d["corrected_cell_sg"]) CHECK(has_decimals(cell, 4));
+  for (const char* key : {"soc_percent", "soc_from_sg_percent", "soc_from_ocv_percent",
+                          "soc_uncertainty_percent", "freezing_point_c", "electrolyte_c"}) {
+    CAPTURE(key);
+    REQUIRE(d[key].is_number());
+    CHECK(has_decimals(d[key], 3));
+  }
+  CHECK_FALSE(has_decimals(d["soc_from_sg_percent"], 0));  // rounded, not truncated to whole
+  CHECK(stored["cell_sg"] == reading["cell_sg"]);
+  CHECK(stored["ocv_v"] == 12.437);
+  CHECK(stored["electrolyte_temp_c"] == -3.7);
 }
 
 TEST_CASE("the default answer echoes every field with its derived values, in the stored form") {
