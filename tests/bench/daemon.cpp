@@ -9,7 +9,10 @@
 #include <cstdlib>
 #include <iterator>
 #include <chrono>
+#include <filesystem>
 #include <fstream>
+#include <sstream>
+#include <string>
 #include <vector>
 #include <stdexcept>
 #include <thread>
@@ -109,6 +112,25 @@ long Daemon::status_kb(const std::string& field) const {
     if (line.rfind(field + ":", 0) == 0) return std::stol(line.substr(field.size() + 1));
   }
   return -1;
+}
+
+double Daemon::cpu_seconds(const std::string& thread) const {
+  const std::filesystem::path tasks = "/proc/" + std::to_string(pid_) + "/task";
+  std::error_code ec;
+  double ticks = 0;
+  for (const auto& task : std::filesystem::directory_iterator(tasks, ec)) {
+    std::ifstream in(task.path() / "stat");
+    std::string stat((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    // "tid (comm) state ppid ...": utime and stime are fields 14 and 15.
+    const auto open = stat.find('('), close = stat.rfind(')');
+    if (open == std::string::npos || close == std::string::npos) continue;
+    if (!thread.empty() && stat.substr(open + 1, close - open - 1) != thread) continue;
+    std::istringstream fields(stat.substr(close + 2));
+    std::string field;
+    for (int i = 3; i <= 15 && fields >> field; ++i)
+      if (i >= 14) ticks += std::stod(field);
+  }
+  return ticks / static_cast<double>(::sysconf(_SC_CLK_TCK));
 }
 
 void kill_daemons() {

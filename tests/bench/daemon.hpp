@@ -29,6 +29,10 @@ class Daemon {
   [[nodiscard]] pid_t pid() const { return pid_; }
   // A "Vm...:" line of /proc/PID/status in kB (VmHWM = peak RSS), or -1.
   [[nodiscard]] long status_kb(const std::string& field) const;
+  // CPU time (user + system) the daemon's threads named `thread` have used
+  // so far, in seconds; every thread when `thread` is empty. Threads that
+  // ended are not counted, so compare snapshots of long-lived threads.
+  [[nodiscard]] double cpu_seconds(const std::string& thread = {}) const;
   // Stops the daemon now (idempotent).
   void stop();
 

@@ -22,6 +22,8 @@
 #include <filesystem>
 #include <nlohmann/json.hpp>
 #include <string>
+#include <tuple>
+#include <utility>
 #include <vector>
 
 #include "deploy/demogen/generator.hpp"
@@ -73,8 +75,8 @@ Options parse(int argc, char** argv) {
 
 // Requests/s of `make` over the standard load; exits on any failure.
 template <class Make>
-double drive(std::uint16_t port, const std::string& token, const Options& o, std::size_t limit,
-             int expect, Make make) {
+LoadResult drive_load(std::uint16_t port, const std::string& token, const Options& o,
+                      std::size_t limit, int expect, Make make) {
   LoadSpec spec;
   spec.port = port;
   spec.token = token;
@@ -84,12 +86,51 @@ double drive(std::uint16_t port, const std::string& token, const Options& o, std
   spec.seconds = o.seconds;
   spec.expect_status = expect;
   spec.make = make;
-  const auto result = run_load(spec);
+  auto result = run_load(spec);
   if (!result.error.empty()) {
     std::fprintf(stderr, "load failed: %s\n", result.error.c_str());
     std::exit(1);
   }
-  return result.rate();
+  return result;
+}
+
+template <class Make>
+double drive(std::uint16_t port, const std::string& token, const Options& o, std::size_t limit,
+             int expect, Make make) {
+  return drive_load(port, token, o, limit, expect, make).rate();
+}
+
+// What the daemon's CPU went to during a batched phase, per reading: a
+// steadier figure than the rate on a shared machine, for comparing changes
+// to the request path (parsing, deriving, rendering) run against run.
+struct CpuSplit {
+  double all_us = 0;     // every thread
+  double writer_us = 0;  // the writer thread alone
+};
+
+template <class Make>
+std::pair<double, CpuSplit> drive_batches(const Daemon& daemon, const std::string& token,
+                                          const Options& o, std::size_t limit, Make make) {
+  const double all = daemon.cpu_seconds(), writer = daemon.cpu_seconds("reading-writer");
+  const LoadResult result = drive_load(daemon.port(), token, o, limit, 201, make);
+  const double readings = static_cast<double>(result.requests * kBatch);
+  CpuSplit split;
+  split.all_us = (daemon.cpu_seconds() - all) / readings * 1e6;
+  split.writer_us = (daemon.cpu_seconds("reading-writer") - writer) / readings * 1e6;
+  return {result.rate() * kBatch, split};
+}
+
+void print_cpu(const std::string& name, const CpuSplit& split) {
+  Figure f;
+  f.name = name;
+  f.value = split.all_us;
+  f.unit = "us CPU/reading";
+  f.limit_name = "writer thread";
+  f.limit = split.writer_us;
+  f.limit_unit = "us";
+  f.ratio = split.writer_us > 0 ? split.all_us / split.writer_us : 0;
+  f.note = "pbfleetd's CPU per reading stored, all threads against the writer's";
+  print_figure(f);
 }
 
 // A fresh database with the fleet's depots, vehicles and batteries.
@@ -118,6 +159,7 @@ int main(int argc, char** argv) {
   std::string token;
   const fs::path served = fresh_db(o.work, "served.db", fleet, &token);
   double healthz = 0, single = 0, batched = 0, minimal = 0;
+  CpuSplit batched_cpu, minimal_cpu;
   {
     Daemon daemon(o.pbfleetd, served, o.work / "pbfleetd.log");
     const auto port = daemon.port();
@@ -128,10 +170,10 @@ int main(int argc, char** argv) {
     single = drive(port, token, o, single_bodies.size(), 201, [&](std::size_t i) {
       return LoadRequest{"POST", "/v1/readings", single_bodies[i], {}};
     });
-    batched = kBatch * drive(port, token, o, batch_bodies.size(), 201, [&](std::size_t i) {
+    std::tie(batched, batched_cpu) = drive_batches(daemon, token, o, batch_bodies.size(), [&](std::size_t i) {
       return LoadRequest{"POST", "/v1/readings", batch_bodies[i], {}};
     });
-    minimal = kBatch * drive(port, token, o, minimal_bodies.size(), 201, [&](std::size_t i) {
+    std::tie(minimal, minimal_cpu) = drive_batches(daemon, token, o, minimal_bodies.size(), [&](std::size_t i) {
       return LoadRequest{"POST", "/v1/readings", minimal_bodies[i], "return=minimal"};
     });
   }
@@ -178,5 +220,7 @@ int main(int argc, char** argv) {
   print_figure({"ingest.batch500.minimal", minimal, "readings/s", "raw SQLite insert", raw_rate,
                 "rows/s", minimal / raw_rate, at_least(0.9, ">= 0.90"), {},
                 "as above, Prefer: return=minimal"});
+  print_cpu("ingest.batch500.cpu", batched_cpu);
+  print_cpu("ingest.batch500.minimal.cpu", minimal_cpu);
   return 0;  // a missed target is a figure to read, not a failed run
 }
