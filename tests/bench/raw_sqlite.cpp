@@ -104,28 +104,32 @@ void bind_temperature(sqlite3_stmt* s, int i, const std::optional<models::wire::
   else sqlite3_bind_null(s, i + 1);
 }
 
-void bind_reading(sqlite3_stmt* s, const models::wire::ReadingInput& r, std::int64_t battery_id,
-                  std::uint64_t n) {
+constexpr int kRawColumns = 19;
+
+// Binds one row to parameters first + 1 .. first + kRawColumns.
+void bind_reading(sqlite3_stmt* s, int first, const models::wire::ReadingInput& r,
+                  std::int64_t battery_id, std::uint64_t n) {
   const std::string sg = join_sg(r.cell_sg);
-  sqlite3_bind_text(s, 1, r.reading_id.c_str(), -1, SQLITE_TRANSIENT);
-  sqlite3_bind_int64(s, 2, battery_id);
-  sqlite3_bind_int64(s, 3, r.taken_at.time_since_epoch().count());
-  sqlite3_bind_int64(s, 4, r.taken_at.time_since_epoch().count());
-  bind_optional(s, 5, r.ocv.has_value(), r.ocv ? r.ocv->value : 0.0);
-  sqlite3_bind_text(s, 6, sg.c_str(), -1, SQLITE_TRANSIENT);
-  bind_temperature(s, 7, r.electrolyte);
-  bind_temperature(s, 9, r.ambient);
-  bind_optional(s, 11, r.rest.has_value(), r.rest ? r.rest->value : 0.0);
-  sqlite3_bind_null(s, 12);
-  sqlite3_bind_null(s, 13);
-  sqlite3_bind_text(s, 14, r.logged_by.c_str(), -1, SQLITE_TRANSIENT);
-  sqlite3_bind_text(s, 15, r.source.c_str(), -1, SQLITE_TRANSIENT);
-  sqlite3_bind_text(s, 16, r.note.c_str(), -1, SQLITE_TRANSIENT);
-  sqlite3_bind_int(s, 17, r.after_charge ? 1 : 0);
-  sqlite3_bind_int(s, 18, r.water_added ? 1 : 0);
+  const auto at = [first](int column) { return first + column; };
+  sqlite3_bind_text(s, at(1), r.reading_id.c_str(), -1, SQLITE_TRANSIENT);
+  sqlite3_bind_int64(s, at(2), battery_id);
+  sqlite3_bind_int64(s, at(3), r.taken_at.time_since_epoch().count());
+  sqlite3_bind_int64(s, at(4), r.taken_at.time_since_epoch().count());
+  bind_optional(s, at(5), r.ocv.has_value(), r.ocv ? r.ocv->value : 0.0);
+  sqlite3_bind_text(s, at(6), sg.c_str(), -1, SQLITE_TRANSIENT);
+  bind_temperature(s, at(7), r.electrolyte);
+  bind_temperature(s, at(9), r.ambient);
+  bind_optional(s, at(11), r.rest.has_value(), r.rest ? r.rest->value : 0.0);
+  sqlite3_bind_null(s, at(12));
+  sqlite3_bind_null(s, at(13));
+  sqlite3_bind_text(s, at(14), r.logged_by.c_str(), -1, SQLITE_TRANSIENT);
+  sqlite3_bind_text(s, at(15), r.source.c_str(), -1, SQLITE_TRANSIENT);
+  sqlite3_bind_text(s, at(16), r.note.c_str(), -1, SQLITE_TRANSIENT);
+  sqlite3_bind_int(s, at(17), r.after_charge ? 1 : 0);
+  sqlite3_bind_int(s, at(18), r.water_added ? 1 : 0);
   unsigned char hash[16] = {};  // the raw limit does not hash: a counter keeps rows distinct
   for (int i = 0; i < 8; ++i) hash[i] = static_cast<unsigned char>(n >> (8 * i));
-  sqlite3_bind_blob(s, 19, hash, sizeof hash, SQLITE_TRANSIENT);
+  sqlite3_bind_blob(s, at(19), hash, sizeof hash, SQLITE_TRANSIENT);
 }
 
 std::map<std::string, std::int64_t> battery_ids(Connection& c) {
@@ -199,26 +203,48 @@ std::string serial_with_id(const std::filesystem::path& db, std::int64_t id) {
 }
 
 double raw_insert_rate(const std::filesystem::path& db,
-                       const std::vector<models::wire::ReadingInput>& readings, std::size_t batch) {
+                       const std::vector<models::wire::ReadingInput>& readings, std::size_t batch,
+                       std::size_t rows_per_statement) {
   Connection c(db, true);
   const auto ids = battery_ids(c);
-  sqlite3_stmt* s = c.prepare(
-      "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
-      " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h, load_test_a,"
-      " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash)"
-      " VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17, ?18, ?19)");
+  const auto insert_sql = [](std::size_t rows) {
+    std::string sql =
+        "INSERT INTO readings (reading_id, battery_id, taken_at, received_at, ocv_v, cell_sg,"
+        " electrolyte_temp_c, electrolyte_unit, ambient_temp_c, ambient_unit, rest_h, load_test_a,"
+        " load_test_end_v, logged_by, source, note, after_charge, water_added, content_hash) VALUES ";
+    for (std::size_t r = 0; r < rows; ++r) {
+      sql += r == 0 ? "(" : ", (";
+      for (int p = 1; p <= kRawColumns; ++p) {
+        sql += '?';
+        sql += std::to_string(r * kRawColumns + static_cast<std::size_t>(p));
+        if (p < kRawColumns) sql += ", ";
+      }
+      sql += ')';
+    }
+    return sql;
+  };
+  sqlite3_stmt* one = c.prepare(insert_sql(1));
+  sqlite3_stmt* many = rows_per_statement > 1 ? c.prepare(insert_sql(rows_per_statement)) : nullptr;
   const auto start = SteadyClock::now();
   for (std::size_t i = 0; i < readings.size(); i += batch) {
     c.exec("BEGIN IMMEDIATE");
-    for (std::size_t j = i; j < std::min(readings.size(), i + batch); ++j) {
-      bind_reading(s, readings[j], ids.at(readings[j].serial), j);
+    const std::size_t end = std::min(readings.size(), i + batch);
+    for (std::size_t j = i; j < end;) {
+      const bool full = many && end - j >= rows_per_statement;
+      sqlite3_stmt* s = full ? many : one;
+      const std::size_t rows = full ? rows_per_statement : 1;
+      for (std::size_t r = 0; r < rows; ++r)
+        bind_reading(s, static_cast<int>(r) * kRawColumns, readings[j + r],
+                     ids.at(readings[j + r].serial), j + r);
       if (sqlite3_step(s) != SQLITE_DONE) die(c.get(), "insert");
       sqlite3_reset(s);
+      j += rows;
     }
     c.exec("COMMIT");
   }
   const double seconds = seconds_since(start);
-  sqlite3_finalize(s);
+  sqlite3_finalize(one);
+  sqlite3_finalize(many);
   return static_cast<double>(readings.size()) / seconds;
 }
 

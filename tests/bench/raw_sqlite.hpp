@@ -48,9 +48,12 @@ std::string serial_with_id(const std::filesystem::path& db, std::int64_t id);
 // Inserts `readings` with one prepared INSERT, `batch` rows per
 // transaction (BEGIN IMMEDIATE ... COMMIT), on a database the store
 // created (so schema, triggers, WAL, synchronous=FULL and the page cache
-// size are the server's).
+// size are the server's). With `rows_per_statement` > 1 each INSERT
+// carries that many rows (VALUES (...), (...)), the rest of a transaction
+// one row at a time.
 // Every serial must name an existing battery. Returns rows per second.
 double raw_insert_rate(const std::filesystem::path& db,
-                       const std::vector<models::wire::ReadingInput>& readings, std::size_t batch);
+                       const std::vector<models::wire::ReadingInput>& readings, std::size_t batch,
+                       std::size_t rows_per_statement = 1);
 
 }  // namespace pbfleet::bench

@@ -6,6 +6,8 @@
 
 #include <algorithm>
 #include <cstdio>
+#include <map>
+#include <random>
 #include <set>
 
 #include "fixture.hpp"
@@ -234,6 +236,108 @@ STORE_TEST_CASE("a clean group goes in whole, each answer holding its readings a
   CHECK(outcomes[0].readings[0].received_at == at(20));
   CHECK(ids.size() == 3 + 2 + 2);
   CHECK(f.store->readings_count().value() == 1 + 3 + 2 + 1);
+}
+
+STORE_TEST_CASE("random groups of batches of 1 to 80 rows get each row's fate right") {
+  // Batches cross the sizes the SQLite writer inserts in (32, 8 and 1 rows
+  // to a statement) with new readings, replays of stored ones, repeats
+  // inside a batch, conflicts and unknown serials anywhere in them. A
+  // simple model says what each batch must come to, batch after batch.
+  Fleet<Backend> f;
+  std::mt19937 random(20261204);
+  std::map<std::string, ReadingInput> stored;  // by reading_id
+  const auto same = [](const ReadingInput& a, const ReadingInput& b) {
+    return content_hash(a) == content_hash(b);
+  };
+  int next_id = 0;
+  for (int group = 0; group < 12; ++group) {
+    const int day = group + 1;
+    std::vector<std::vector<ReadingInput>> batches(1 + random() % 3);
+    for (auto& batch : batches) {
+      const std::size_t rows = 1 + random() % 80;
+      for (std::size_t row = 0; row < rows; ++row) {
+        const unsigned kind = random() % 100;
+        ReadingInput r = reading("g" + std::to_string(next_id++), "NY-0001", day);
+        r.note = r.reading_id;
+        if (kind < 12 && !stored.empty()) {  // a replay of a stored reading
+          r = std::next(stored.begin(), static_cast<long>(random() % stored.size()))->second;
+        } else if (kind < 14 && !stored.empty()) {  // a stored id, other content
+          r.reading_id = stored.begin()->first;
+        } else if (kind < 22 && !batch.empty()) {  // a repeat inside the batch
+          r = batch[random() % batch.size()];
+        } else if (kind < 24 && !batch.empty()) {  // an id of the batch, other content
+          r.reading_id = batch[random() % batch.size()].reading_id;
+        } else if (kind < 25) {
+          r.serial = "NY-9999";
+        }
+        batch.push_back(r);
+      }
+    }
+    const auto outcomes = f.store->append_reading_batches(testing::prepared(batches), at(day, 12));
+    REQUIRE(outcomes.ok());
+    REQUIRE(outcomes->size() == batches.size());
+    for (std::size_t b = 0; b < batches.size(); ++b) {
+      const auto& batch = batches[b];
+      const AppendOutcome& out = (*outcomes)[b];
+      // The model. A row is refused for an unknown serial, or for a
+      // reading_id used before (in the batch, or stored) with other content.
+      std::vector<std::size_t> problem_rows;
+      std::map<std::string, ReadingInput> in_batch;
+      std::vector<bool> replayed;
+      std::size_t fresh = 0;
+      for (std::size_t row = 0; row < batch.size(); ++row) {
+        const ReadingInput& r = batch[row];
+        if (r.serial != "NY-0001") {
+          problem_rows.push_back(row);
+          continue;
+        }
+        const auto earlier = in_batch.find(r.reading_id);
+        const auto kept = stored.find(r.reading_id);
+        if (earlier != in_batch.end()) {
+          // A repeat: refused when it differs from the first, or when the
+          // first differs from the stored reading (so does the repeat).
+          const bool conflict = kept != stored.end() && !same(kept->second, r);
+          if (!same(earlier->second, r) || conflict) problem_rows.push_back(row);
+          replayed.push_back(true);
+          continue;
+        }
+        if (kept != stored.end() && !same(kept->second, r)) problem_rows.push_back(row);
+        replayed.push_back(kept != stored.end());
+        fresh += kept == stored.end() ? 1 : 0;
+        in_batch.emplace(r.reading_id, r);
+      }
+      CAPTURE(group);
+      CAPTURE(b);
+      std::vector<std::size_t> got_rows;
+      for (const auto& p : out.problems) got_rows.push_back(p.row);
+      const auto rows_text = [](const std::vector<std::size_t>& rows) {
+        std::string text;
+        for (const auto row : rows) text += std::to_string(row) + " ";
+        return text;
+      };
+      INFO("refused rows: ", rows_text(got_rows), "| expected: ", rows_text(problem_rows));
+      CHECK(got_rows == problem_rows);
+      CHECK(out.accepted() == problem_rows.empty());
+      if (!out.accepted()) continue;
+      CHECK(out.stored == fresh);
+      CHECK(out.replayed == replayed);
+      REQUIRE(out.readings.size() == batch.size());
+      for (std::size_t row = 0; row < batch.size(); ++row) {
+        CHECK(out.readings[row].reading_id == batch[row].reading_id);
+        CHECK(same(out.readings[row], batch[row]));
+      }
+      for (const auto& [id, r] : in_batch) stored.emplace(id, r);
+    }
+    // Every answered id is the row stored under its reading_id.
+    const auto history = f.store->readings_for("NY-0001", std::nullopt, std::nullopt);
+    REQUIRE(history.ok());
+    std::map<std::string, Id> ids;
+    for (const auto& r : *history) ids.emplace(r.reading_id, r.id);
+    CHECK(ids.size() == stored.size());
+    for (const auto& out : *outcomes)
+      for (const auto& r : out.readings) CHECK(ids.at(r.reading_id) == r.id);
+  }
+  CHECK(f.store->readings_count().value() == static_cast<std::int64_t>(stored.size()));
 }
 
 STORE_TEST_CASE("texts with quotes, backslashes, braces, commas and NULL read back verbatim") {
