@@ -120,7 +120,12 @@ std::string round_id(const std::string& serial, std::chrono::sys_days day) {
   return buf;
 }
 
-double round_to(double v, double step) { return std::round(v / step) * step; }
+// `v` to a whole number of `step`s (0.001, 0.01, 0.5), as an instrument
+// shows it: 1.273, not 1273 * 0.001 = 1.2730000000000001.
+double round_to(double v, double step) {
+  const double per_unit = std::round(1.0 / step);
+  return std::round(v * per_unit) / per_unit;
+}
 
 models::wire::ReadingInput make_reading(const BatterySpecOut& b, const models::BatterySpec& spec,
                                         const BatteryState& s, const DepotSpec& depot,
