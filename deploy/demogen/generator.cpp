@@ -120,9 +120,11 @@ std::string round_id(const std::string& serial, std::chrono::sys_days day) {
   return buf;
 }
 
-// `v` to a whole number of `step`s (0.001, 0.01, 0.5), as an instrument
-// shows it: 1.273, not 1273 * 0.001 = 1.2730000000000001.
+// `v` to a whole number of `step`s (0.001, 0.5, 10), as an instrument
+// shows it: 1.273, not 1273 * 0.001 = 1.2730000000000001. A fraction of a
+// unit divides by the steps per unit, which is exact for the decimal.
 double round_to(double v, double step) {
+  if (step >= 1.0) return std::round(v / step) * step;
   const double per_unit = std::round(1.0 / step);
   return std::round(v * per_unit) / per_unit;
 }

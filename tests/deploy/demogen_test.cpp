@@ -56,6 +56,35 @@ TEST_CASE("every generated reading passes the shared validation") {
   CHECK(count > 24 * 40);
 }
 
+TEST_CASE("generated numbers are finite and in whole instrument steps") {
+  // As a crew would enter them: SG to 0.001 (hydrometer), OCV to 0.01 V,
+  // rest to 0.5 h; vehicles' cranking need in 10 A and displacement in 0.1 l.
+  // v is the double a crew's decimal text of it reads as.
+  const auto whole_steps = [](double v, double step) {
+    if (!std::isfinite(v)) return false;
+    if (step >= 1) return std::fmod(v, step) == 0;
+    const double per_unit = std::round(1 / step);
+    return std::round(v * per_unit) / per_unit == v;
+  };
+  const auto config = small_config(13);
+  const auto fleet = demogen::make_fleet(config);
+  for (const auto& v : fleet.vehicles) {
+    CHECK(whole_steps(v.required_cca_a, 10));
+    CHECK(whole_steps(v.displacement_l, 0.1));
+    CHECK(v.required_cca_a > 0);
+  }
+  std::size_t count = 0;
+  demogen::generate_readings(config, fleet, [&](const auto&, const auto& rows) {
+    for (const auto& r : rows) {
+      for (const auto& sg : r.cell_sg) CHECK(whole_steps(sg.value, 0.001));
+      if (r.ocv) CHECK(whole_steps(r.ocv->value, 0.01));
+      if (r.rest) CHECK(whole_steps(r.rest->value, 0.5));
+      ++count;
+    }
+  });
+  CHECK(count > 0);
+}
+
 TEST_CASE("generated hydrometer readings correct back to an SG the OCV agrees with when settled") {
   // The generator runs the models in reverse; running them forward again on a
   // settled healthy reading must land near the OCV it wrote (meter noise 10 mV,
