@@ -6,6 +6,7 @@
 
 #include "cli/commands/context.hpp"
 #include "cli/commands/render.hpp"
+#include "cli/commands/sg_flags.hpp"
 #include "cli/commands/table.hpp"
 #include "models/wire/precision.hpp"
 #include "models/wire/reading.hpp"
@@ -167,7 +168,7 @@ int run_estimate(const EstimateFlags& flags, OutputMode mode, Context& ctx) {
 void install_estimate(CLI::App& cmd, Context& ctx) {
   auto f = std::make_shared<EstimateFlags>();
   auto out = std::make_shared<OutputFlags>();
-  auto* sg = cmd.add_option("--sg", f->sg, "Hydrometer SG as read (one value for the battery)")->type_name("SG");
+  auto* sg = cmd.add_option("--sg", f->sg, "Hydrometer SG as read (one value for the battery)")->type_name("SG")->check(one_sg_value());
   auto* cells = cmd.add_option("--cell-sg", f->cell_sg, "Hydrometer SG per cell, cell 1 first: 1.265,1.260,...")
                     ->delimiter(',')
                     ->type_name("SG,SG,...");

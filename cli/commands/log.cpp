@@ -7,6 +7,7 @@
 
 #include "cli/commands/estimate.hpp"
 #include "cli/commands/remote.hpp"
+#include "cli/commands/sg_flags.hpp"
 #include "cli/commands/table.hpp"
 #include "cli/client/reading_json.hpp"
 #include "cli/import/reading_id.hpp"
@@ -142,7 +143,7 @@ int run_log(LogFlags f, Context& ctx) {
 void install_log(CLI::App& cmd, Context& ctx) {
   auto f = std::make_shared<LogFlags>();
   cmd.add_option("serial", f->serial, "Battery serial")->required();
-  auto* sg = cmd.add_option("--sg", f->sg, "Hydrometer SG as read (one value)")->type_name("SG");
+  auto* sg = cmd.add_option("--sg", f->sg, "Hydrometer SG as read (one value)")->type_name("SG")->check(one_sg_value());
   auto* cells = cmd.add_option("--cell-sg", f->cell_sg, "Hydrometer SG per cell, cell 1 first")
                     ->delimiter(',')->type_name("SG,SG,...");
   sg->excludes(cells);

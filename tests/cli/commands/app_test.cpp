@@ -38,6 +38,18 @@ TEST_CASE("usage errors exit 2 with the message on stderr and nothing on stdout"
   }
 }
 
+TEST_CASE("a list given to --sg points to --cell-sg, for log and estimate alike") {
+  for (std::vector<std::string> args : {std::vector<std::string>{"estimate", "--sg", "1.231,1.236"},
+                                        {"log", "NB-1", "--sg", "1.231,1.236", "--ocv", "12.4"}}) {
+    testing::Terminal term;
+    CAPTURE(args.front());
+    CHECK(term.run(args) == kExitUsage);
+    CHECK(term.out.str().empty());
+    CHECK(term.err.str().find("--sg: takes one SG for the battery; for one per cell use --cell-sg") !=
+          std::string::npos);
+  }
+}
+
 TEST_CASE("global flags are accepted after the subcommand too") {
   testing::Terminal term;
   CHECK(term.run({"estimate", "--sg", "1.250", "--ascii", "--color", "never"}) == 0);
