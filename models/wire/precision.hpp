@@ -15,6 +15,7 @@ namespace pbfleet::models::wire {
 
 inline constexpr int kSgDecimals = 4;       // specific gravity, SG spreads
 inline constexpr int kVoltDecimals = 4;     // volts
+inline constexpr int kAmpDecimals = 1;      // amperes (cranking current)
 inline constexpr int kDerivedDecimals = 3;  // percentages, degrees, days, ratios
 
 // The double nearest to `value` rounded to `decimals` places (halves away

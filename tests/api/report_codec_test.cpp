@@ -8,6 +8,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "models/wire/precision.hpp"
 #include "models/wire/reading.hpp"
 #include "server/api/json_fields.hpp"
 
@@ -57,6 +58,12 @@ analytics::WinterRisk full_risk() {
   return r;
 }
 
+// A value as the reports publish it (models/wire/precision.hpp): ratios,
+// percentages, degrees and days to 3 decimals, amperes to 1.
+json published(const std::optional<double>& v, int decimals = models::wire::kDerivedDecimals) {
+  return opt(models::wire::rounded(v, decimals));
+}
+
 json risk_reference(const analytics::WinterRisk& r) {
   return {{"serial", r.serial},
           {"depot_id", r.depot_id},
@@ -65,15 +72,15 @@ json risk_reference(const analytics::WinterRisk& r) {
           {"level", analytics::to_string(r.level)},
           {"low_c", r.low_c},
           {"reading_at", r.reading_at ? json(models::wire::format_timestamp(*r.reading_at)) : json(nullptr)},
-          {"data_age_days", opt(r.data_age_days)},
-          {"soc_at_reading_percent", opt(r.soc_at_reading_percent)},
-          {"projected_soc_percent", opt(r.projected_soc_percent)},
-          {"available_a", opt(r.available_a)},
-          {"required_a", opt(r.required_a)},
-          {"crank_margin", opt(r.crank_margin)},
-          {"crank_margin_full", opt(r.crank_margin_full)},
-          {"freezing_point_c", opt(r.freezing_point_c)},
-          {"freeze_margin_c", opt(r.freeze_margin_c)},
+          {"data_age_days", published(r.data_age_days)},
+          {"soc_at_reading_percent", published(r.soc_at_reading_percent)},
+          {"projected_soc_percent", published(r.projected_soc_percent)},
+          {"available_a", published(r.available_a, models::wire::kAmpDecimals)},
+          {"required_a", published(r.required_a, models::wire::kAmpDecimals)},
+          {"crank_margin", published(r.crank_margin)},
+          {"crank_margin_full", published(r.crank_margin_full)},
+          {"freezing_point_c", published(r.freezing_point_c)},
+          {"freeze_margin_c", published(r.freeze_margin_c)},
           {"replacement_expected", r.replacement_expected},
           {"reasons", r.reasons},
           {"action", r.action},
@@ -90,6 +97,20 @@ void check_same(const std::string& text, const json& expected) {
   const json sent = json::parse(dump(expected));
   CHECK(got == sent);
   CHECK(dump(got) == dump(sent));
+}
+
+TEST_CASE("report numbers are published with the stated decimals, no floating-point tails") {
+  analytics::WinterReport report;
+  report.cold_date = kDay;
+  report.batteries.push_back(full_risk());  // crank margin 312.5 / 410 = 0.76219...
+  report.batteries.back().data_age_days = 4.455949074074074;
+  report.batteries.back().available_a = 127.22375620848227;
+  const json got = json::parse(winter_json(report))["batteries"][0];
+  CHECK(got["crank_margin"].get<double>() == 0.762);
+  CHECK(got["crank_margin_full"].get<double>() == 0.0);  // 1e-5 is below the last decimal
+  CHECK(got["data_age_days"].get<double>() == 4.456);
+  CHECK(got["available_a"].get<double>() == 127.2);
+  CHECK(got["soc_at_reading_percent"].get<double>() == 61.25);  // short values stay as they are
 }
 
 TEST_CASE("the winter report body is the reference document, strings escaped and nulls kept") {
