@@ -14,16 +14,12 @@ namespace wire = models::wire;
 
 namespace {
 
-// Published decimals (models/wire/precision.hpp). Trend slopes and their
-// statistics are left whole: they are small numbers whose digits matter.
+// Published decimals (models/wire/precision.hpp): percentages, degrees,
+// days and ratios alike, amperes, specific gravities. Trend slopes and
+// their statistics are left whole: they are small numbers whose digits
+// matter.
 template <class Number>
-Number as_percent(const Number& v) { return wire::rounded(v, wire::kDerivedDecimals); }
-template <class Number>
-Number as_degrees(const Number& v) { return wire::rounded(v, wire::kDerivedDecimals); }
-template <class Number>
-Number as_days(const Number& v) { return wire::rounded(v, wire::kDerivedDecimals); }
-template <class Number>
-Number as_ratio(const Number& v) { return wire::rounded(v, wire::kDerivedDecimals); }
+Number as_derived(const Number& v) { return wire::rounded(v, wire::kDerivedDecimals); }
 template <class Number>
 Number as_amperes(const Number& v) { return wire::rounded(v, wire::kAmpDecimals); }
 template <class Number>
@@ -79,17 +75,17 @@ void write_risk(JsonText& w, const analytics::WinterRisk& r) {
   w.begin_object();
   w.key("serial").value(r.serial).key("depot_id").value(r.depot_id);
   w.key("depot_name").value(r.depot_name).key("vehicle_code").value(r.vehicle_code);
-  w.key("level").value(analytics::to_string(r.level)).key("low_c").value(as_degrees(r.low_c));
+  w.key("level").value(analytics::to_string(r.level)).key("low_c").value(as_derived(r.low_c));
   w.key("reading_at");
   r.reading_at ? w.value(wire::timestamp_text(*r.reading_at).view()) : w.null();
-  w.key("data_age_days").value(as_days(r.data_age_days));
-  w.key("soc_at_reading_percent").value(as_percent(r.soc_at_reading_percent));
-  w.key("projected_soc_percent").value(as_percent(r.projected_soc_percent));
+  w.key("data_age_days").value(as_derived(r.data_age_days));
+  w.key("soc_at_reading_percent").value(as_derived(r.soc_at_reading_percent));
+  w.key("projected_soc_percent").value(as_derived(r.projected_soc_percent));
   w.key("available_a").value(as_amperes(r.available_a)).key("required_a").value(as_amperes(r.required_a));
-  w.key("crank_margin").value(as_ratio(r.crank_margin));
-  w.key("crank_margin_full").value(as_ratio(r.crank_margin_full));
-  w.key("freezing_point_c").value(as_degrees(r.freezing_point_c));
-  w.key("freeze_margin_c").value(as_degrees(r.freeze_margin_c));
+  w.key("crank_margin").value(as_derived(r.crank_margin));
+  w.key("crank_margin_full").value(as_derived(r.crank_margin_full));
+  w.key("freezing_point_c").value(as_derived(r.freezing_point_c));
+  w.key("freeze_margin_c").value(as_derived(r.freeze_margin_c));
   w.key("replacement_expected").value(r.replacement_expected);
   w.key("reasons");
   write_strings(w, r.reasons);
@@ -101,11 +97,11 @@ void write_risk(JsonText& w, const analytics::WinterRisk& r) {
 void write_depot(JsonText& w, const analytics::DepotWinterSummary& d) {
   w.begin_object();
   w.key("depot_id").value(d.depot_id).key("depot_name").value(d.depot_name);
-  w.key("low_c").value(as_degrees(d.low_c)).key("batteries").value(d.batteries);
+  w.key("low_c").value(as_derived(d.low_c)).key("batteries").value(d.batteries);
   w.key("act_now").value(d.act_now).key("watch").value(d.watch);
   w.key("no_data").value(d.no_data).key("ok").value(d.ok);
   w.key("expected_replacements").value(d.expected_replacements);
-  w.key("oldest_data_days").value(as_days(d.oldest_data_days));
+  w.key("oldest_data_days").value(as_derived(d.oldest_data_days));
   w.end_object();
 }
 
@@ -125,9 +121,9 @@ void write_sulfation(JsonText& w, const analytics::SulfationAssessment& a) {
   w.begin_object();
   w.key("serial").value(a.serial).key("depot_id").value(a.depot_id);
   w.key("depot_name").value(a.depot_name).key("level").value(analytics::to_string(a.level));
-  w.key("undercharge_days").value(as_days(a.undercharge_days));
+  w.key("undercharge_days").value(as_derived(a.undercharge_days));
   w.key("exposure_window_days").value(a.exposure_window_days);
-  w.key("undercharge_threshold_pct").value(as_percent(a.undercharge_threshold_pct));
+  w.key("undercharge_threshold_pct").value(as_derived(a.undercharge_threshold_pct));
   w.key("trend_basis").value(analytics::to_string(a.trend_basis));
   w.key("trend_points").value(a.trend_points);
   w.key("sg_trend");
@@ -157,7 +153,7 @@ void write_replacement(JsonText& w, const analytics::ReplacementForecast& f) {
   w.begin_object();
   w.key("serial").value(f.serial).key("depot_id").value(f.depot_id);
   w.key("depot_name").value(f.depot_name).key("criterion").value(analytics::to_string(f.criterion));
-  w.key("threshold_sg").value(as_sg(f.threshold_sg)).key("design_low_c").value(as_degrees(f.design_low_c));
+  w.key("threshold_sg").value(as_sg(f.threshold_sg)).key("design_low_c").value(as_derived(f.design_low_c));
   w.key("date");
   write_day(w, f.date);
   w.key("earliest");
@@ -218,7 +214,8 @@ std::string overdue_json(const std::vector<analytics::DepotOverdue>& report, int
       w.key("serial").value(b.serial).key("vehicle_code").value(b.vehicle_code);
       w.key("last_reading");
       b.last_reading ? w.value(wire::timestamp_text(*b.last_reading).view()) : w.null();
-      w.key("days_overdue_basis").value(as_days(b.days_overdue_basis)).key("never_read").value(b.never_read);
+      w.key("days_overdue_basis").value(as_derived(b.days_overdue_basis));
+      w.key("never_read").value(b.never_read);
       w.end_object();
     }
   }

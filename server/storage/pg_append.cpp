@@ -116,13 +116,6 @@ class Columns {
   std::size_t rows_ = 0;
 };
 
-RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
-  return RowProblem{row, StoreErrc::conflict, "reading_id",
-                    "reading_id '" + reading_id +
-                        "' was already used for a reading with different content; a retry must "
-                        "resend exactly the same reading, a new reading needs a new id"};
-}
-
 // One row of a batch after the in-memory checks.
 struct Row {
   PreparedReading prepared;
@@ -158,7 +151,7 @@ BatchWork check_batch(std::vector<PreparedReading>& batch, const BatteryRefs& ba
       if (w.rows[it->second].prepared.hash == row.prepared.hash) {
         row.same_as = it->second;
       } else {
-        w.problems.push_back(conflict_problem(i, row.prepared.input.reading_id));
+        w.problems.push_back(reading_id_conflict(i, row.prepared.input.reading_id));
         row.problem = true;
       }
       continue;
@@ -233,7 +226,7 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
         if (e->second.second == row.prepared.hash) {
           replay_ids.push_back(e->second.first);
         } else {
-          w.problems.push_back(conflict_problem(i, row.prepared.input.reading_id));
+          w.problems.push_back(reading_id_conflict(i, row.prepared.input.reading_id));
           row.problem = true;
         }
       }
@@ -241,7 +234,7 @@ std::vector<AppendOutcome> store_checked(Tx& tx, std::vector<BatchWork>& work, s
     // A repeat of a conflicting row conflicts too.
     for (std::size_t i = 0; i < w.rows.size(); ++i) {
       if (w.rows[i].same_as && w.rows[*w.rows[i].same_as].problem) {
-        w.problems.push_back(conflict_problem(i, w.rows[i].prepared.input.reading_id));
+        w.problems.push_back(reading_id_conflict(i, w.rows[i].prepared.input.reading_id));
       }
     }
   }

@@ -185,13 +185,6 @@ std::optional<Earlier> find_existing(ReadingStatements& st, const std::string& r
   return found;
 }
 
-RowProblem conflict_problem(std::size_t row, const std::string& reading_id) {
-  return RowProblem{row, StoreErrc::conflict, "reading_id",
-                    "reading_id '" + reading_id +
-                        "' was already used for a reading with different content; a retry must "
-                        "resend exactly the same reading, a new reading needs a new id"};
-}
-
 // What became of one row of a batch.
 struct RowFate {
   enum class Kind { inserted, replay_of_stored, replay_in_batch } kind = Kind::inserted;
@@ -238,7 +231,7 @@ void insert_pending(Db& db, ReadingStatements& st, const std::vector<PreparedRea
     if (found->id > before) {
       plan.fates[p.row] = {RowFate::Kind::inserted, found->id, p.battery->id, 0};
     } else if (found->hash != prepared.hash) {
-      plan.problems.push_back(conflict_problem(p.row, reading_id));
+      plan.problems.push_back(reading_id_conflict(p.row, reading_id));
     } else {
       plan.fates[p.row] = {RowFate::Kind::replay_of_stored, 0, 0, plan.originals.size()};
       plan.originals.push_back(st.read_original(found->id));
@@ -255,7 +248,7 @@ void check_pending(ReadingStatements& st, const std::vector<PreparedReading>& ba
     const PreparedReading& prepared = batch[p.row];
     const auto found = find_existing(st, prepared.input.reading_id);
     if (found && found->hash != prepared.hash)
-      plan.problems.push_back(conflict_problem(p.row, prepared.input.reading_id));
+      plan.problems.push_back(reading_id_conflict(p.row, prepared.input.reading_id));
   }
   pending.clear();
 }
@@ -285,7 +278,7 @@ BatchPlan plan_batch(Db& db, ReadingStatements& st, std::vector<PreparedReading>
     if (input.reading_id.empty()) input.reading_id = new_reading_id();
     if (auto it = seen.find(input.reading_id); it != seen.end()) {
       if (batch[it->second].hash != prepared.hash) {
-        plan.problems.push_back(conflict_problem(row, input.reading_id));
+        plan.problems.push_back(reading_id_conflict(row, input.reading_id));
         continue;
       }
       plan.fates[row] = {RowFate::Kind::replay_in_batch, 0, 0, it->second};
@@ -305,7 +298,7 @@ BatchPlan plan_batch(Db& db, ReadingStatements& st, std::vector<PreparedReading>
   for (std::size_t row = 0; row < batch.size() && !plan.problems.empty(); ++row) {
     const RowFate& fate = plan.fates[row];
     if (fate.kind == RowFate::Kind::replay_in_batch && conflicting[fate.index] && !conflicting[row])
-      plan.problems.push_back(conflict_problem(row, batch[row].input.reading_id));
+      plan.problems.push_back(reading_id_conflict(row, batch[row].input.reading_id));
   }
   // In row order, however they were found.
   std::stable_sort(plan.problems.begin(), plan.problems.end(),

@@ -118,6 +118,15 @@ struct RowProblem {
   std::string detail;
 };
 
+// The problem every store gives for a reading_id used before with other
+// content (stored, or earlier in the same batch).
+inline RowProblem reading_id_conflict(std::size_t row, const std::string& reading_id) {
+  return RowProblem{row, StoreErrc::conflict, "reading_id",
+                    "reading_id '" + reading_id +
+                        "' was already used for a reading with different content; a retry must "
+                        "resend exactly the same reading, a new reading needs a new id"};
+}
+
 // What became of one batch. Either every reading is stored (or replayed) or,
 // when `problems` is non-empty, none is.
 struct AppendOutcome {
