@@ -17,10 +17,10 @@ namespace {
 using client::Json;
 using models::Error;
 
+using models::wire::kDerivedDecimals;
 using models::wire::kSgDecimals;
 using models::wire::kVoltDecimals;
 using models::wire::rounded;
-constexpr int kOtherDecimals = models::wire::kDerivedDecimals;
 
 constexpr std::array<std::pair<std::string_view, std::string_view>, 19> kFieldFlags = {{
     {"electrolyte_temp_f", "--temp"}, {"ambient_temp_c", "--ambient"}, {"ambient_temp_f", "--ambient"},
@@ -107,26 +107,26 @@ Json estimate_json(const models::EstimateInput& in, const models::EstimateOutput
   Json j = Json::object();
   j["chemistry"] = std::string(models::to_string(in.spec.chemistry));
   j["cells"] = in.spec.cells;
-  j["electrolyte_temp_c"] = rounded(in.electrolyte.value, kOtherDecimals);
+  j["electrolyte_temp_c"] = rounded(in.electrolyte.value, kDerivedDecimals);
   j["corrected_sg"] = number_or_null(o.corrected_sg, kSgDecimals);
-  j["acid_molality"] = number_or_null(o.acid_molality, kOtherDecimals);
-  j["acid_wt_percent"] = number_or_null(o.acid_wt_percent, kOtherDecimals);
+  j["acid_molality"] = number_or_null(o.acid_molality, kDerivedDecimals);
+  j["acid_wt_percent"] = number_or_null(o.acid_wt_percent, kDerivedDecimals);
   j["cell_emf_v"] = number_or_null(o.cell_emf_v, kVoltDecimals);
   j["ocv_model_v"] = number_or_null(o.ocv_model_v, kVoltDecimals);
-  j["soc_from_sg_percent"] = number_or_null(o.soc_from_sg_percent, kOtherDecimals);
-  j["table_soc_from_sg_percent"] = number_or_null(o.table_soc_from_sg_percent, kOtherDecimals);
+  j["soc_from_sg_percent"] = number_or_null(o.soc_from_sg_percent, kDerivedDecimals);
+  j["table_soc_from_sg_percent"] = number_or_null(o.table_soc_from_sg_percent, kDerivedDecimals);
   if (in.ocv) {
-    j["soc_from_ocv_percent"] = number_or_null(o.soc_from_ocv_percent, kOtherDecimals);
-    j["table_soc_from_ocv_percent"] = number_or_null(o.table_soc_from_ocv_percent, kOtherDecimals);
+    j["soc_from_ocv_percent"] = number_or_null(o.soc_from_ocv_percent, kDerivedDecimals);
+    j["table_soc_from_ocv_percent"] = number_or_null(o.table_soc_from_ocv_percent, kDerivedDecimals);
     j["ocv_settled"] = o.ocv_settled ? Json(*o.ocv_settled) : Json();
   }
-  j["soc_percent"] = rounded(o.soc_percent, kOtherDecimals);
-  j["soc_uncertainty_percent"] = rounded(o.soc_uncertainty_percent, kOtherDecimals);
+  j["soc_percent"] = rounded(o.soc_percent, kDerivedDecimals);
+  j["soc_uncertainty_percent"] = rounded(o.soc_uncertainty_percent, kDerivedDecimals);
   j["disagreement"] = o.disagreement;
-  j["freeze_point_c"] = number_or_null(o.freeze_point_c, kOtherDecimals);
+  j["freeze_point_c"] = number_or_null(o.freeze_point_c, kDerivedDecimals);
   if (in.low) {
-    j["low_c"] = rounded(in.low->value, kOtherDecimals);
-    j["freeze_margin_c"] = number_or_null(o.freeze_margin_c, kOtherDecimals);
+    j["low_c"] = rounded(in.low->value, kDerivedDecimals);
+    j["freeze_margin_c"] = number_or_null(o.freeze_margin_c, kDerivedDecimals);
   }
   if (in.cell_sg.size() >= 2) {
     Json cells = Json::array();
@@ -138,7 +138,7 @@ Json estimate_json(const models::EstimateInput& in, const models::EstimateOutput
   if (in.spec.rated_cca.value > 0 && in.low) {
     j["available_cca"] = number_or_null(o.available_cca, 1);
     j["required_cca_at_low"] = number_or_null(o.required_cca_at_low, 1);
-    j["crank_margin"] = number_or_null(o.crank_margin, kOtherDecimals);
+    j["crank_margin"] = number_or_null(o.crank_margin, kDerivedDecimals);
   }
   j["flags"] = o.flags;
   j["notes"] = o.notes;
@@ -168,7 +168,9 @@ int run_estimate(const EstimateFlags& flags, OutputMode mode, Context& ctx) {
 void install_estimate(CLI::App& cmd, Context& ctx) {
   auto f = std::make_shared<EstimateFlags>();
   auto out = std::make_shared<OutputFlags>();
-  auto* sg = cmd.add_option("--sg", f->sg, "Hydrometer SG as read (one value for the battery)")->type_name("SG")->check(one_sg_value());
+  auto* sg = cmd.add_option("--sg", f->sg, "Hydrometer SG as read (one value for the battery)")
+                 ->type_name("SG")
+                 ->check(one_sg_value());
   auto* cells = cmd.add_option("--cell-sg", f->cell_sg, "Hydrometer SG per cell, cell 1 first: 1.265,1.260,...")
                     ->delimiter(',')
                     ->type_name("SG,SG,...");

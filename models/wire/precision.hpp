@@ -19,9 +19,11 @@ inline constexpr int kAmpDecimals = 1;      // amperes (cranking current)
 inline constexpr int kDerivedDecimals = 3;  // percentages, degrees, days, ratios
 
 // The double nearest to `value` rounded to `decimals` places (halves away
-// from zero).
+// from zero). Answers round every derived value of every reading, so the
+// scales are a table, not std::pow.
 inline double rounded(double value, int decimals) {
-  const double scale = std::pow(10.0, decimals);
+  static constexpr double kScale[] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6};
+  const double scale = decimals >= 0 && decimals <= 6 ? kScale[decimals] : std::pow(10.0, decimals);
   return std::round(value * scale) / scale;
 }
 inline std::optional<double> rounded(const std::optional<double>& value, int decimals) {

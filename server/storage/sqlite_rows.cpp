@@ -42,7 +42,6 @@ class Canonical {
  public:
   Canonical() { out_.reserve(256); }
   void add(std::string_view part) { add(part, {}); }
-  void add(double value) { add(Shortest(value).view()); }
   template <class Q>
   void add(const std::optional<Q>& q) {
     q ? add(Shortest(q->value).view()) : add(std::string_view("-"));
